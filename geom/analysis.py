@@ -1,0 +1,399 @@
+"""Whole-scene analysis: per-feature boundaries, per-mate worst-case fit, fastener tolerances.
+
+Every number carries the formula that produced it (:class:`Derived`), so the CLI, the report
+and the viewer print the same derivation.
+
+>>> from geom.scenefile import loads
+>>> scene = loads('''
+... title = "t"
+... units = "in"
+... [[feature]]
+... id = "h"
+... kind = "hole"
+... limits = [1.120, 1.124]
+... length = 0.5
+... [feature.tolerance]
+... characteristic = "perpendicularity"
+... value = 0.002
+... material = "MMC"
+... datums = ["A"]
+... ''')
+>>> r = analyse_scene(scene)
+>>> r.features["h"].virtual_condition.formula(scene.units, scene.standard)
+'VC = MMC - t = 1.1200 - 0.0020 = 1.1180'
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from . import boundaries as B
+from .model import (
+    Characteristic, Fastener, Feature, Kind, Material, Scene, Standard, Units, Zone, envelope_applies,
+)
+
+# ---------------------------------------------------------------- names in each standard's terms
+
+_ASME = {
+    "mmc": ("MMC", "maximum material condition"),
+    "lmc": ("LMC", "least material condition"),
+    "vc_MMC": ("VC", "virtual condition (MMC)"),
+    "vc_LMC": ("VC", "virtual condition (LMC)"),
+    "rc": ("RC", "resultant condition"),
+    "inner": ("IB", "inner boundary"),
+    "outer": ("OB", "outer boundary"),
+    "bonus": ("bonus", "bonus tolerance"),
+    "t": ("t", "stated tolerance"),
+    "t_mmc": ("t@MMC", "tolerance at MMC"),
+    "t_pos": ("T", "position tolerance"),
+    "t_lmc": ("t@LMC", "tolerance at LMC"),
+    "rfs": ("RFS", "regardless of feature size"),
+}
+_ISO = {
+    "mmc": ("MMS", "maximum material size"),
+    "lmc": ("LMS", "least material size"),
+    "vc_MMC": ("MMVS", "maximum material virtual size (ISO 2692)"),
+    "vc_LMC": ("LMVS", "least material virtual size (ISO 2692)"),
+    "rc": ("RC", "resultant condition (no ISO term: the opposite worst-case size)"),
+    "inner": ("IB", "inner worst-case boundary (no ISO term)"),
+    "outer": ("OB", "outer worst-case boundary (no ISO term)"),
+    "bonus": ("increase", "tolerance increase from the MMR/LMR (ISO 2692)"),
+    "t": ("t", "stated tolerance"),
+    "t_mmc": ("t@MMS", "tolerance at MMS"),
+    "t_pos": ("T", "position tolerance"),
+    "t_lmc": ("t@LMS", "tolerance at LMS"),
+    "rfs": ("indep.", "no modifier: independency (ISO 8015)"),
+}
+
+
+def term(key: str, standard: Standard) -> tuple[str, str]:
+    """(abbreviation, long name) of a quantity in the standard's own terms."""
+    return (_ISO if standard is Standard.ISO else _ASME)[key]
+
+
+# ---------------------------------------------------------------- derived values with formulas
+
+
+@dataclass(frozen=True)
+class Derived:
+    """A computed length with the formula that produced it.
+
+    ``symbolic`` uses term keys in braces, e.g. ``"{mmc} - {t}"``; ``operands`` are the numbers
+    substituted, in order, into ``numeric`` (a format pattern with ``{}`` slots).
+    """
+
+    key: str  # term key of the result, e.g. "vc_MMC"
+    value: float | None
+    symbolic: str = ""
+    numeric: str = ""
+    operands: tuple[float, ...] = ()
+    note: str = ""  # why the value is None, or a caveat
+
+    def abbr(self, standard: Standard) -> str:
+        return term(self.key, standard)[0]
+
+    def formula(self, units: Units, standard: Standard = Standard.ASME) -> str:
+        """``VC = MMC - t = 10.000 - 0.020 = 9.980`` in the standard's terms."""
+        name = self.abbr(standard)
+        if self.value is None:
+            return f"{name}: none ({self.note})" if self.note else f"{name}: none"
+        if not self.symbolic:
+            return f"{name} = {units.fmt(self.value)}"
+        sym = self.symbolic.format(**{k: term(k, standard)[0] for k in _ASME})
+        num = self.numeric.format(*(units.fmt(v) for v in self.operands))
+        if num == units.fmt(self.value):  # nothing to substitute: avoid "x = 1 = 1"
+            return f"{name} = {sym} = {num}"
+        return f"{name} = {sym} = {num} = {units.fmt(self.value)}"
+
+
+@dataclass(frozen=True)
+class FeatureResult:
+    feature: Feature
+    mmc: Derived
+    lmc: Derived
+    bonus_max: Derived
+    tolerance_at_mmc: Derived
+    tolerance_at_lmc: Derived
+    virtual_condition: Derived
+    resultant_condition: Derived
+    inner_boundary: Derived
+    outer_boundary: Derived
+    tilt_max_deg: float | None
+    envelope: bool
+    notes: tuple[str, ...]
+
+
+def _none(key: str, note: str) -> Derived:
+    return Derived(key, None, note=note)
+
+
+def analyse_feature(f: Feature, standard: Standard = Standard.ASME) -> FeatureResult:
+    tol = f.tolerance
+    s = "+" if f.kind is Kind.PIN else "-"
+    o = "-" if f.kind is Kind.PIN else "+"
+    mmc = Derived("mmc", f.mmc, "smallest size" if f.kind is Kind.HOLE else "largest size", "{}", (f.mmc,))
+    lmc = Derived("lmc", f.lmc, "largest size" if f.kind is Kind.HOLE else "smallest size", "{}", (f.lmc,))
+    notes: list[str] = []
+    env = envelope_applies(f, standard)
+    inner_v, outer_v = B.worst_case_boundaries(f, standard)
+
+    if tol is None:
+        why = "no geometric tolerance"
+        bonus = _none("bonus", why)
+        t_mmc = _none("t_mmc", why)
+        t_lmc = _none("t_lmc", why)
+        vc = _none("vc_MMC", why)
+        rc = _none("rc", why)
+        mm_side = (
+            Derived("inner" if f.kind is Kind.HOLE else "outer", f.mmc, "{mmc} (envelope: perfect form at MMC)", "{}", (f.mmc,))
+            if env
+            else _none("inner" if f.kind is Kind.HOLE else "outer",
+                       "no envelope under ISO 8015 independency: form is not limited by the size")
+        )
+        lm_side = _none("outer" if f.kind is Kind.HOLE else "inner", "nothing relates this side to a datum")
+        if not env:
+            notes.append("ISO 8015 independency and no geometric tolerance: the size limits do not "
+                         "limit form; add the envelope (E) or a geometric tolerance to bound it.")
+        inner, outer = (mm_side, lm_side) if f.kind is Kind.HOLE else (lm_side, mm_side)
+        return FeatureResult(f, mmc, lmc, bonus, t_mmc, t_lmc, vc, rc, inner, outer, None, env, tuple(notes))
+
+    t = tol.value
+    bmax = B.bonus_max(f)
+    tm, tl = B.tolerance_at_mmc(f), B.tolerance_at_lmc(f)
+    if tol.material is Material.MMC:
+        bonus = Derived("bonus", bmax, "|{lmc} - {mmc}|", "|{} - {}|", (f.lmc, f.mmc))
+        t_mmc = Derived("t_mmc", tm, "{t}", "{}", (t,))
+        t_lmc = Derived("t_lmc", tl, "{t} + bonus_max", "{} + {}", (t, bmax))
+        vc = Derived("vc_MMC", B.virtual_condition(f), "{mmc} " + s + " {t}", "{} " + s + " {}", (f.mmc, t))
+        rc = Derived("rc", B.resultant_condition(f), "{lmc} " + o + " {t} " + o + " bonus_max",
+                     "{} " + o + " {} " + o + " {}", (f.lmc, t, bmax))
+    elif tol.material is Material.LMC:
+        bonus = Derived("bonus", bmax, "|{mmc} - {lmc}|", "|{} - {}|", (f.mmc, f.lmc))
+        t_mmc = Derived("t_mmc", tm, "{t} + bonus_max", "{} + {}", (t, bmax))
+        t_lmc = Derived("t_lmc", tl, "{t}", "{}", (t,))
+        vc = Derived("vc_LMC", B.virtual_condition(f), "{lmc} " + o + " {t}", "{} " + o + " {}", (f.lmc, t))
+        rc = Derived("rc", B.resultant_condition(f), "{mmc} " + s + " {t} " + s + " bonus_max",
+                     "{} " + s + " {} " + s + " {}", (f.mmc, t, bmax))
+    else:
+        bonus = Derived("bonus", 0.0, "0 (no modifier)", "{}", (0.0,))
+        t_mmc = Derived("t_mmc", tm, "{t}", "{}", (t,))
+        t_lmc = Derived("t_lmc", tl, "{t}", "{}", (t,))
+        vc = _none("vc_MMC", "RFS: no virtual condition; see inner/outer boundary")
+        rc = _none("rc", "RFS: no resultant condition; see inner/outer boundary")
+    # inner / outer boundary, written from the worst-case sizes at MMC and LMC
+    mm_key, lm_key = ("inner", "outer") if f.kind is Kind.HOLE else ("outer", "inner")
+    mm_val = inner_v if f.kind is Kind.HOLE else outer_v
+    lm_val = outer_v if f.kind is Kind.HOLE else inner_v
+    mm_side = Derived(mm_key, mm_val, "{mmc} " + s + " {t_mmc}", "{} " + s + " {}", (f.mmc, tm))
+    lm_side = Derived(lm_key, lm_val, "{lmc} " + o + " {t_lmc}", "{} " + o + " {}", (f.lmc, tl))
+    inner, outer = (mm_side, lm_side) if f.kind is Kind.HOLE else (lm_side, mm_side)
+
+    if tol.zone is Zone.WIDTH:
+        notes.append("width zone: the boundaries are two parallel planes this far apart, "
+                     "controlling the axis in one direction only")
+    if tol.characteristic is Characteristic.STRAIGHTNESS:
+        notes.append("straightness of the derived median line: the boundaries are not oriented "
+                     "or located to a datum; the axis may bend, not tilt")
+    if tol.projected:
+        notes.append(f"projected tolerance zone: the tolerance applies over {tol.projected:g} "
+                     "beyond datum A, where the mating part sits")
+    if tol.characteristic is Characteristic.PARALLELISM and tol.zone is Zone.DIAMETER and tol.datums == ("A",):
+        notes.append("a diameter zone for parallelism to a datum plane controls the axis in "
+                     "every direction; check that the drawing means this")
+    if env and tol.material is Material.MMC and t == 0:
+        notes.append("zero tolerance at MMC: the virtual condition equals MMC")
+    tilt = B.tilt_angle_deg(f, max(tm, tl))
+    return FeatureResult(f, mmc, lmc, bonus, t_mmc, t_lmc, vc, rc, inner, outer, tilt, env, tuple(notes))
+
+
+# ---------------------------------------------------------------- mates
+
+
+@dataclass(frozen=True)
+class MateResult:
+    hole: str
+    pin: str
+    hole_boundary: Derived  # inner boundary of the hole (or MMC with perfect form assumed)
+    pin_boundary: Derived  # outer boundary of the pin
+    clearance_min: float  # worst case with the geometric tolerances
+    clearance_min_size: float  # from the size limits alone: hole MMC - pin MMC (ISO 286)
+    clearance_max: float  # loosest fit from the size limits: hole LMC - pin LMC
+    assembles: bool
+    assumptions: tuple[str, ...]
+
+    @property
+    def verdict(self) -> str:
+        return mate_verdict(self.clearance_min, self.assembles)
+
+
+FIT_SLACK = 1e-9  # a line-to-line fit (zero clearance) still assembles
+
+
+def mate_verdict(clearance: float, assembles: bool, units: Units | None = None) -> str:
+    fmt = (lambda v: units.fmt(v) + " " + units.value) if units else (lambda v: f"{v:.6g}")
+    if not assembles:
+        return f"INTERFERES by {fmt(-clearance)} in the worst case: the pin may not enter the hole"
+    if abs(clearance) <= FIT_SLACK:
+        return "ASSEMBLES line-to-line in the worst case (zero clearance, no margin)"
+    return f"ASSEMBLES in the worst case with {fmt(clearance)} clearance"
+
+
+def _mate_side(res: FeatureResult, which: str) -> tuple[Derived, str | None]:
+    d = res.inner_boundary if which == "inner" else res.outer_boundary
+    if d.value is not None:
+        return d, None
+    f = res.feature
+    assumed = Derived(which, f.mmc, "{mmc} (perfect form assumed)", "{}", (f.mmc,))
+    return assumed, (f"{f.id}: no worst-case boundary is defined ({d.note}); "
+                     f"the fit assumes perfect form at MMC")
+
+
+def analyse_mate(hole: FeatureResult, pin: FeatureResult) -> MateResult:
+    hb, n1 = _mate_side(hole, "inner")
+    pb, n2 = _mate_side(pin, "outer")
+    cmin = hb.value - pb.value
+    assumptions = ["both parts seat on datum A and the pin enters normal to it"]
+    assumptions += [n for n in (n1, n2) if n]
+    return MateResult(
+        hole=hole.feature.id,
+        pin=pin.feature.id,
+        hole_boundary=hb,
+        pin_boundary=pb,
+        clearance_min=cmin,
+        clearance_min_size=hole.feature.mmc - pin.feature.mmc,
+        clearance_max=hole.feature.lmc - pin.feature.lmc,
+        assembles=cmin >= -FIT_SLACK,
+        assumptions=tuple(assumptions),
+    )
+
+
+def clearance_at(hole: Feature, pin: Feature, hole_state: B.FeatureState, pin_state: B.FeatureState) -> float:
+    """What-if clearance: the hole's clear opening minus the pin's swept envelope, both normal
+    to A, with the used shares of the tolerances allowed at the produced sizes combining
+    adversely (worst relative direction)."""
+    return B.effective_size(hole, hole_state) - B.effective_size(pin, pin_state)
+
+
+# ---------------------------------------------------------------- fasteners
+
+
+@dataclass(frozen=True)
+class FastenerResult:
+    fastener: Fastener
+    position_tolerance: Derived
+    position_tolerance_unprojected: Derived | None
+
+
+def required_hole_fixed(F: float, t1: float, t2: float, P: float, D: float) -> float:
+    """Clearance-hole MMC for a fixed fastener without a projected zone:
+    H = F + T1 + T2 (1 + 2P/D)  (ASME Y14.5-2018 Appendix B, from memory)."""
+    return F + t1 + t2 * (1.0 + 2.0 * P / D)
+
+
+def analyse_fastener(fa: Fastener) -> FastenerResult:
+    H, F = fa.hole, fa.fastener
+    if fa.kind == "floating":
+        T = Derived("t_pos", H - F, "H - F", "{} - {}", (H, F))
+        return FastenerResult(fa, T, None)
+    T = Derived("t_pos", (H - F) / 2.0, "(H - F) / 2", "({} - {}) / 2", (H, F))
+    P, D = fa.projection, fa.thread_depth
+    Tu = Derived("t_pos", (H - F) / (2.0 + 2.0 * P / D), "(H - F) / (2 + 2P/D)",
+                 "({} - {}) / (2 + 2*{}/{})", (H, F, P, D))
+    return FastenerResult(fa, T, Tu)
+
+
+# ---------------------------------------------------------------- scene
+
+
+@dataclass(frozen=True)
+class SceneResult:
+    scene: Scene
+    features: dict[str, FeatureResult]
+    mates: tuple[MateResult, ...]
+    fasteners: dict[str, FastenerResult]
+
+
+def analyse_scene(scene: Scene) -> SceneResult:
+    feats = {f.id: analyse_feature(f, scene.standard) for f in scene.features}
+    mates = tuple(analyse_mate(feats[m.hole], feats[m.pin]) for m in scene.mates)
+    fas = {fa.id: analyse_fastener(fa) for fa in scene.fasteners}
+    return SceneResult(scene, feats, mates, fas)
+
+
+def _r(v: float | None) -> float | None:
+    return None if v is None else round(v, 9) + 0.0
+
+
+def result_to_json(res: SceneResult) -> dict:
+    """The ``analyze --json`` object (numbers in scene units, None where none is defined)."""
+    sc = res.scene
+    out: dict = {"title": sc.title, "units": sc.units.value, "standard": sc.standard.value, "features": {}}
+    for fid, r in res.features.items():
+        f = r.feature
+        tol = f.tolerance
+        out["features"][fid] = {
+            "kind": f.kind.value,
+            "limits": [f.limits[0], f.limits[1]],
+            "length": f.length,
+            "mmc": _r(r.mmc.value),
+            "lmc": _r(r.lmc.value),
+            "virtual_condition": _r(r.virtual_condition.value),
+            "resultant_condition": _r(r.resultant_condition.value),
+            "inner_boundary": _r(r.inner_boundary.value),
+            "outer_boundary": _r(r.outer_boundary.value),
+            "bonus_max": _r(r.bonus_max.value),
+            "tolerance_at_mmc": _r(r.tolerance_at_mmc.value),
+            "tolerance_at_lmc": _r(r.tolerance_at_lmc.value),
+            "tilt_max_deg": _r(r.tilt_max_deg),
+            "envelope": r.envelope,
+            "tolerance": None if tol is None else {
+                "characteristic": tol.characteristic.value,
+                "zone": tol.zone.value,
+                "value": tol.value,
+                "material": tol.material.value,
+                "datums": list(tol.datums),
+                "projected": tol.projected,
+                "angle": tol.angle,
+                "frame": tol.symbol(sc.units),
+            },
+            "formulas": {
+                k: getattr(r, k).formula(sc.units, sc.standard)
+                for k in ("virtual_condition", "resultant_condition", "inner_boundary", "outer_boundary",
+                          "bonus_max", "tolerance_at_mmc", "tolerance_at_lmc")
+            },
+            "notes": list(r.notes),
+        }
+    out["mates"] = [
+        {
+            "hole": m.hole,
+            "pin": m.pin,
+            "clearance_min": _r(m.clearance_min),
+            "clearance_max": _r(m.clearance_max),
+            "clearance_min_size": _r(m.clearance_min_size),
+            "assembles": m.assembles,
+            "verdict": mate_verdict(m.clearance_min, m.assembles, sc.units),
+            "formula": mate_formula(m, sc.units, sc.standard),
+            "assumptions": list(m.assumptions),
+        }
+        for m in res.mates
+    ]
+    out["fasteners"] = {}
+    for fid, fr in res.fasteners.items():
+        d = {
+            "kind": fr.fastener.kind,
+            "fastener": fr.fastener.fastener,
+            "hole": fr.fastener.hole,
+            "position_tolerance": _r(fr.position_tolerance.value),
+            "formula": fr.position_tolerance.formula(sc.units, sc.standard),
+        }
+        if fr.position_tolerance_unprojected is not None:
+            d["position_tolerance_unprojected"] = _r(fr.position_tolerance_unprojected.value)
+            d["formula_unprojected"] = fr.position_tolerance_unprojected.formula(sc.units, sc.standard)
+        out["fasteners"][fid] = d
+    return out
+
+
+def mate_formula(m: MateResult, units: Units, standard: Standard) -> str:
+    h, p = m.hole_boundary, m.pin_boundary
+    return (f"clearance = {h.abbr(standard)}(hole) - {p.abbr(standard)}(pin) = "
+            f"{units.fmt(h.value)} - {units.fmt(p.value)} = {units.fmt(m.clearance_min, signed=True)}")

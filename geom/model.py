@@ -1,0 +1,221 @@
+"""Immutable values: features of size, geometric tolerances, mates, fasteners, scenes.
+
+All lengths are in the scene's units (``mm`` or ``in``); angles in degrees.
+The datum frame: datum A is the plane z = 0, a feature's nominal axis starts at
+its basic location ``at`` = (x, y) on A.
+
+>>> bore = Feature("bore", Kind.HOLE, (10.000, 10.015), 15.0)
+>>> bore.mmc, bore.lmc
+(10.0, 10.015)
+>>> pin = Feature("dowel", Kind.PIN, (9.985, 9.995), 15.0)
+>>> pin.mmc, pin.lmc
+(9.995, 9.985)
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field, replace
+from enum import Enum
+
+
+class Kind(str, Enum):
+    """Internal (hole) or external (pin) feature of size."""
+
+    HOLE = "hole"
+    PIN = "pin"
+
+
+class Material(str, Enum):
+    """Material-condition modifier of a geometric tolerance."""
+
+    MMC = "MMC"
+    LMC = "LMC"
+    RFS = "RFS"
+
+
+class Characteristic(str, Enum):
+    POSITION = "position"
+    PERPENDICULARITY = "perpendicularity"
+    PARALLELISM = "parallelism"
+    ANGULARITY = "angularity"
+    STRAIGHTNESS = "straightness"
+
+
+class Zone(str, Enum):
+    """Shape of the tolerance zone of a derived axis."""
+
+    DIAMETER = "diameter"  # cylinder
+    WIDTH = "width"  # two parallel planes
+
+
+class Standard(str, Enum):
+    ASME = "asme"  # ASME Y14.5: Rule #1 (envelope) by default
+    ISO = "iso"  # ISO 8015 independency: envelope only when asked for
+
+
+class Units(str, Enum):
+    MM = "mm"
+    IN = "in"
+
+    @property
+    def decimals(self) -> int:
+        """Usual reporting precision: mm to 3 decimals, inch to 4 (common practice, no source)."""
+        return 3 if self is Units.MM else 4
+
+    def fmt(self, value: float | None, signed: bool = False) -> str:
+        """Format a length at the units' usual precision ("-" for None)."""
+        if value is None:
+            return "-"
+        v = round(value, self.decimals) + 0.0  # drop negative zero
+        return f"{v:+.{self.decimals}f}" if signed else f"{v:.{self.decimals}f}"
+
+
+@dataclass(frozen=True)
+class Tolerance:
+    """A geometric tolerance applied to the derived median line (axis) of a feature of size."""
+
+    characteristic: Characteristic
+    value: float
+    zone: Zone = Zone.DIAMETER
+    material: Material = Material.RFS
+    datums: tuple[str, ...] = ()
+    projected: float | None = None  # projected tolerance zone height
+    angle: float | None = None  # basic angle to datum A (angularity only), degrees
+
+    def symbol(self, units: "Units | None" = None) -> str:
+        """Compact feature-control-frame text, e.g. ``⟂ ⌀0.020 (M) | A``."""
+        sym = {
+            Characteristic.POSITION: "⌖",
+            Characteristic.PERPENDICULARITY: "⟂",
+            Characteristic.PARALLELISM: "∥",
+            Characteristic.ANGULARITY: "∠",
+            Characteristic.STRAIGHTNESS: "⏤",
+        }[self.characteristic]
+        dia = "⌀" if self.zone is Zone.DIAMETER else ""
+        mod = {Material.MMC: " (M)", Material.LMC: " (L)", Material.RFS: ""}[self.material]
+        num = units.fmt if units is not None else (lambda v: f"{v:g}")
+        proj = f" (P){num(self.projected)}" if self.projected else ""
+        dat = "".join(f" | {d}" for d in self.datums)
+        return f"{sym} {dia}{num(self.value)}{mod}{proj}{dat}"
+
+
+@dataclass(frozen=True)
+class Measured:
+    """Inspection values typed into the scene for a produced part (see :mod:`geom.inspect`)."""
+
+    size: float | None = None  # unrelated actual mating size
+    related_size: float | None = None  # related (datum-oriented) actual mating size
+    axis_deviation: float | None = None  # zone size needed by the derived axis
+    axis_bottom: tuple[float, float] | None = None  # axis point (x, y) at z = 0
+    axis_top: tuple[float, float] | None = None  # axis point (x, y) at z = length
+    local_sizes: tuple[float, float] | None = None  # smallest and largest local size
+    uncertainty: float | None = None  # expanded uncertainty U (k = 2)
+    points: str | None = None  # CSV of surface points, relative to the scene file
+
+
+@dataclass(frozen=True)
+class Feature:
+    """A cylindrical feature of size: a hole (internal) or a pin (external)."""
+
+    id: str
+    kind: Kind
+    limits: tuple[float, float]  # (smallest, largest) size
+    length: float  # length of engagement along the axis
+    at: tuple[float, float] = (0.0, 0.0)  # basic location on datum A
+    tolerance: Tolerance | None = None
+    envelope: bool | None = None  # None: the standard's default (ASME yes, ISO no)
+    measured: Measured | None = None
+    name: str = ""  # free text shown on pictures
+
+    @property
+    def mmc(self) -> float:
+        """Maximum material size: smallest hole, largest pin."""
+        return self.limits[0] if self.kind is Kind.HOLE else self.limits[1]
+
+    @property
+    def lmc(self) -> float:
+        """Least material size: largest hole, smallest pin."""
+        return self.limits[1] if self.kind is Kind.HOLE else self.limits[0]
+
+    @property
+    def size_tolerance(self) -> float:
+        return self.limits[1] - self.limits[0]
+
+    @property
+    def label(self) -> str:
+        return self.name or self.id
+
+    def with_(self, **changes) -> "Feature":
+        return replace(self, **changes)
+
+
+@dataclass(frozen=True)
+class Mate:
+    """One hole receiving one pin (on the other part), both located from datum A."""
+
+    hole: str
+    pin: str
+
+
+@dataclass(frozen=True)
+class Fastener:
+    """A fastener pattern: floating (clearance holes in both parts) or fixed (one part threaded)."""
+
+    id: str
+    kind: str  # "floating" | "fixed"
+    fastener: float  # F, fastener MMC (largest) size
+    hole: float  # H, clearance hole MMC (smallest) size
+    thread_depth: float | None = None  # D, minimum thread depth / thickness of the fixed part
+    projection: float | None = None  # P, maximum thickness of the part with the clearance hole
+
+
+@dataclass(frozen=True)
+class Scene:
+    title: str
+    units: Units
+    standard: Standard = Standard.ASME
+    features: tuple[Feature, ...] = ()
+    mates: tuple[Mate, ...] = ()
+    fasteners: tuple[Fastener, ...] = ()
+    report: tuple[tuple[str, str], ...] = ()  # title-block fields for exported reports
+    source: str | None = field(default=None, compare=False)  # file it was read from
+
+    def feature(self, fid: str) -> Feature:
+        for f in self.features:
+            if f.id == fid:
+                return f
+        raise KeyError(fid)
+
+    def replace_feature(self, feat: Feature) -> "Scene":
+        return replace(self, features=tuple(feat if f.id == feat.id else f for f in self.features))
+
+    def with_(self, **changes) -> "Scene":
+        return replace(self, **changes)
+
+
+def envelope_applies(feature: Feature, standard: Standard) -> bool:
+    """Does the envelope requirement (perfect form at MMC) apply to this feature?
+
+    ASME Y14.5-2018 §5.8.1 (Rule #1, from memory): applies by default.
+    ISO 8015:2011 independency: only where the envelope is indicated (ISO 14405-1 (E)).
+    """
+    if feature.envelope is not None:
+        return feature.envelope
+    return standard is Standard.ASME
+
+
+def axis_direction(tol: Tolerance | None) -> tuple[float, float, float]:
+    """Nominal axis direction in the datum frame (datum A is z = 0).
+
+    Perpendicularity, position, straightness and features without tolerance: +z.
+    Parallelism: +x (axis parallel to A). Angularity: in the x-z plane at the basic angle to A.
+    """
+    if tol is None:
+        return (0.0, 0.0, 1.0)
+    if tol.characteristic is Characteristic.PARALLELISM:
+        return (1.0, 0.0, 0.0)
+    if tol.characteristic is Characteristic.ANGULARITY and tol.angle is not None:
+        a = math.radians(tol.angle)
+        return (math.cos(a), 0.0, math.sin(a))
+    return (0.0, 0.0, 1.0)

@@ -1,0 +1,133 @@
+"""Command line: ``matezone analyze|report|inspect|view``.
+
+Thin on purpose: ``analyze`` imports only :mod:`geom` (no VTK, no Qt, no matplotlib); the
+heavy layers are imported inside the commands that need them.
+Exit codes: 0 done, 1 the scene does not assemble (``analyze --strict`` only),
+2 bad input (a message naming the file, the field and what was expected).
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from pathlib import Path
+
+EXIT_BAD_INPUT = 2
+
+
+def repo_root() -> Path:
+    return Path(__file__).resolve().parent.parent
+
+
+def demo_scene() -> Path:
+    """The bundled demo scene (opened by ``matezone`` with no arguments)."""
+    return repo_root() / "scenes" / "pump_cover_dowel.toml"
+
+
+class UserError(Exception):
+    """Bad input: printed as one message, exit status 2."""
+
+
+def _load(path: str):
+    from geom.scenefile import SceneError, load
+
+    try:
+        return load(path)
+    except SceneError as e:
+        raise UserError(str(e)) from None
+
+
+def cmd_analyze(args) -> int:
+    from geom.analysis import analyse_scene, result_to_json
+    from geom.readout import CAUTION, render_text
+
+    scene = _load(args.scene)
+    res = analyse_scene(scene)
+    if args.json:
+        out = result_to_json(res)
+        out["caution"] = CAUTION
+        print(json.dumps(out, indent=2, ensure_ascii=False))
+    else:
+        sys.stdout.write(render_text(res))
+    if args.strict and any(not m.assembles for m in res.mates):
+        return 1
+    return 0
+
+
+def cmd_report(args) -> int:
+    from matezone.cmd_report import run
+
+    return run(args, _load)
+
+
+def cmd_inspect(args) -> int:
+    from matezone.cmd_inspect import run
+
+    return run(args, _load)
+
+
+def cmd_view(args) -> int:
+    from matezone.cmd_view import run
+
+    return run(args, _load)
+
+
+def build_parser() -> argparse.ArgumentParser:
+    p = argparse.ArgumentParser(
+        prog="matezone",
+        description="Worst-case fit of toleranced holes and pins: MMC/LMC, bonus, virtual condition, "
+        "clearance, with 3D and 2D pictures. With no command, opens the viewer on the demo scene.",
+    )
+    sub = p.add_subparsers(dest="command")
+
+    a = sub.add_parser("analyze", help="print sizes, boundaries with formulas, and fit verdicts")
+    a.add_argument("scene", help="scene file (.toml)")
+    a.add_argument("--json", action="store_true", help="print one JSON object instead of tables")
+    a.add_argument("--strict", action="store_true", help="exit 1 when a mate does not assemble")
+    a.set_defaults(func=cmd_analyze)
+
+    r = sub.add_parser("report", help="write PNG/SVG pictures, a PDF report and results.json (no display needed)")
+    r.add_argument("scene", help="scene file (.toml)")
+    r.add_argument("--out", required=True, help="output folder (created if missing)")
+    r.add_argument("--size", action="append", default=[], metavar="ID=VALUE",
+                   help="produced size of a feature for the what-if pictures (default: worst case)")
+    r.add_argument("--view", default="iso", help="camera of the 3D picture: iso, top, section (default iso)")
+    r.set_defaults(func=cmd_report)
+
+    i = sub.add_parser("inspect", help="judge a produced part from inspection values or CMM points")
+    i.add_argument("scene", help="scene file (.toml)")
+    i.add_argument("--feature", required=True, help="id of the feature measured")
+    i.add_argument("--points", help="CSV of surface points x,y,z[,section] in the datum frame")
+    i.add_argument("--json", action="store_true", help="print one JSON object")
+    i.add_argument("--bonus-basis", choices=["unrelated", "related"], default="unrelated",
+                   help="envelope the bonus is taken from (default: unrelated, ASME Y14.5-2009 and later)")
+    i.set_defaults(func=cmd_inspect)
+
+    v = sub.add_parser("view", help="open the desktop viewer")
+    v.add_argument("scene", nargs="?", help="scene file (.toml); default: the demo scene")
+    v.add_argument("--screenshot", metavar="PNG", help="save a picture of the window once shown, then exit")
+    v.set_defaults(func=cmd_view)
+    return p
+
+
+def main(argv: list[str] | None = None) -> int:
+    argv = sys.argv[1:] if argv is None else argv
+    parser = build_parser()
+    if not argv:
+        argv = ["view"]
+    args = parser.parse_args(argv)
+    if not getattr(args, "func", None):
+        parser.print_help()
+        return EXIT_BAD_INPUT
+    try:
+        return args.func(args)
+    except UserError as e:
+        print(f"matezone: {e}", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    except KeyboardInterrupt:
+        return 130
+
+
+if __name__ == "__main__":
+    sys.exit(main())
