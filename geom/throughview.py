@@ -17,7 +17,7 @@ The geometry is computed with shapely (polygons whose vertices straddle the true
 chord error is split both ways, under 1 nm here); the closed form is kept for checking.
 
 >>> tv = clear_opening(10.0, 0.02, 15.0)
->>> round(tv.inscribed_diameter, 6), round(tv.exact_diameter, 6)
+>>> round(tv.inscribed_diameter, 4), round(tv.exact_diameter, 4)
 (9.98, 9.98)
 """
 
