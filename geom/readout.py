@@ -41,8 +41,10 @@ def feature_rows(r: FeatureResult, units: Units, standard: Standard) -> list[tup
     rows.append((term("inner", standard)[1], units.fmt(r.inner_boundary.value), r.inner_boundary.formula(units, standard)))
     rows.append((term("outer", standard)[1], units.fmt(r.outer_boundary.value), r.outer_boundary.formula(units, standard)))
     if r.tilt_max_deg is not None:
+        tmax = max(r.tolerance_at_mmc.value, r.tolerance_at_lmc.value)
+        where = "projected height" if f.tolerance.projected else "length"
         rows.append(("largest axis tilt", f"{r.tilt_max_deg:.4f} deg",
-                     f"atan(t@LMC-or-MMC / L) over L = {units.fmt(_tilt_len(f))}"))
+                     f"atan(largest t / {where}) = atan({units.fmt(tmax)} / {units.fmt(_tilt_len(f))})"))
     return rows
 
 

@@ -1,0 +1,157 @@
+"""Scene files: every malformed input gets one message naming file, field and expectation."""
+
+import json
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from geom import loads, dumps, load, save
+from geom.scenefile import SceneError
+from matezone.cli import main
+
+ROOT = Path(__file__).resolve().parent.parent
+SCENES = sorted((ROOT / "scenes").glob("*.toml"))
+
+GOOD = """
+title = "t"
+units = "mm"
+[[feature]]
+id = "bore"
+kind = "hole"
+limits = [10.0, 10.015]
+length = 15.0
+[feature.tolerance]
+characteristic = "perpendicularity"
+value = 0.02
+material = "MMC"
+datums = ["A"]
+[[feature]]
+id = "dowel"
+kind = "pin"
+limits = [9.98, 9.99]
+length = 15.0
+[[mate]]
+hole = "bore"
+pin = "dowel"
+"""
+
+
+def edit(old, new):
+    assert old in GOOD
+    return GOOD.replace(old, new, 1)
+
+
+BAD = [
+    # (scene text, field path fragment, message fragment)
+    ("title = [", "", "not valid TOML"),
+    (edit('units = "mm"', 'units = "cm"'), "units", "expected one of 'mm', 'in'"),
+    (edit('units = "mm"\n', ""), "units", "missing"),
+    (edit('kind = "hole"', 'kind = "slot"'), 'feature[0] "bore".kind', "expected one of 'hole', 'pin'"),
+    (edit("limits = [10.0, 10.015]", "limits = [10.015, 10.0]"), "limits", "reversed"),
+    (edit("limits = [10.0, 10.015]", "limits = [10.0]"), "limits", "expected [smallest, largest]"),
+    (edit("limits = [10.0, 10.015]", "limits = [10.0, 10.0]"), "limits", "single size"),
+    (edit("limits = [10.0, 10.015]", 'limits = [10.0, "10.015"]'), "limits[1]", "expected a number, got the string"),
+    (edit("length = 15.0", "length = -15.0"), "length", "expected a number > 0"),
+    (edit("length = 15.0", "length = nan"), "length", "expected a finite number"),
+    (edit("length = 15.0", "length = inf"), "length", "expected a finite number"),
+    (edit("value = 0.02", "value = -0.02"), "tolerance.value", "expected a number >= 0"),
+    (edit('characteristic = "perpendicularity"', 'characteristic = "flatness"'), "characteristic", "expected one of"),
+    (edit('material = "MMC"', 'material = "MMB"'), "material", "(did you mean 'MMC'?)"),
+    (edit('characteristic = "perpendicularity"', 'characteristic = "straightness"'), "datums",
+     "straightness is a form tolerance and takes none"),
+    (edit('hole = "bore"', 'hole = "bor"'), "mate[0].hole", "(did you mean 'bore'?)"),
+    (edit('pin = "dowel"', 'pin = "bore"'), "mate[0].pin", "expected a pin feature"),
+    (edit('id = "dowel"', 'id = "bore"'), "feature[1].id", "expected a unique id"),
+    (edit('value = 0.02', 'valeu = 0.02'), "tolerance.valeu", "unknown key (did you mean 'value'?)"),
+    (edit('length = 15.0\n[feature.tolerance]', 'length = 15.0\nlenght = 3\n[feature.tolerance]'), "lenght", "unknown key"),
+    (GOOD + '[[fastener]]\nid = "s"\nkind = "floating"\nfastener = 6.6\nhole = 6.0\n', 'fastener[0] "s".hole',
+     "expected a clearance hole larger than the fastener"),
+    (GOOD + '[[fastener]]\nid = "s"\nkind = "fixed"\nfastener = 6.0\nhole = 6.6\n', "thread_depth", "missing"),
+    (edit('characteristic = "perpendicularity"', 'characteristic = "angularity"'), "angle", "basic angle"),
+    (edit('value = 0.02\nmaterial = "MMC"', 'value = 0\nmaterial = "RFS"'), "value", "zero tolerance needs"),
+    (edit("[[mate]]", "[mate]"), "mate", "expected an array of tables"),
+]
+
+
+@pytest.mark.parametrize("text, path, fragment", BAD, ids=[f"bad{i}" for i in range(len(BAD))])
+def test_bad_scene_gets_one_clear_message(tmp_path, capsys, text, path, fragment):
+    f = tmp_path / "broken.toml"
+    f.write_text(text, encoding="utf-8")
+    assert main(["analyze", str(f)]) == 2
+    err = capsys.readouterr().err.strip()
+    assert err.count("\n") == 0, err  # one line
+    assert str(f) in err and path in err and fragment in err, err
+
+
+def test_undecodable_bytes(tmp_path, capsys):
+    f = tmp_path / "latin1.toml"
+    f.write_bytes(GOOD.replace('"t"', '"Stra\xdfe"').encode("latin-1"))
+    assert main(["analyze", str(f)]) == 2
+    assert "expected UTF-8 text, got the byte 0xdf" in capsys.readouterr().err
+
+
+def test_missing_file(capsys):
+    assert main(["analyze", "no/such/scene.toml"]) == 2
+    assert "no/such/scene.toml: no such file" in capsys.readouterr().err
+
+
+def test_no_traceback_from_the_real_command(tmp_path):
+    f = tmp_path / "broken.toml"
+    f.write_text(BAD[4][0], encoding="utf-8")
+    p = subprocess.run([sys.executable, "-m", "matezone.cli", "analyze", str(f)], capture_output=True, text=True)
+    assert p.returncode == 2 and "Traceback" not in p.stderr and "reversed" in p.stderr
+
+
+@pytest.mark.parametrize("scene", SCENES, ids=[s.name for s in SCENES])
+def test_round_trip(tmp_path, scene):
+    s = load(scene)
+    out = tmp_path / "copy.toml"
+    save(s, out)
+    again = load(out)
+    assert again == s
+    assert loads(dumps(again)) == again
+    assert not list(tmp_path.glob(".copy.toml.*"))  # no temporary file left behind
+
+
+def test_atomic_save_keeps_old_file_on_failure(tmp_path, monkeypatch):
+    s = loads(GOOD)
+    out = tmp_path / "scene.toml"
+    save(s, out)
+    before = out.read_bytes()
+    import os
+
+    def boom(*a, **k):
+        raise OSError("disk full")
+
+    monkeypatch.setattr(os, "replace", boom)
+    with pytest.raises(OSError):
+        save(s.with_(title="changed"), out)
+    assert out.read_bytes() == before
+    assert not list(tmp_path.glob(".scene.toml.*"))
+
+
+def test_scene_error_fields():
+    with pytest.raises(SceneError) as e:
+        loads(edit("length = 15.0", "length = 0"), file="x.toml")
+    assert e.value.file == "x.toml" and e.value.path == 'feature[0] "bore".length'
+
+
+def test_json_output(capsys, tmp_path):
+    f = tmp_path / "s.toml"
+    f.write_text(GOOD, encoding="utf-8")
+    assert main(["analyze", str(f), "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    bore = out["features"]["bore"]
+    for k in ("kind", "mmc", "lmc", "virtual_condition", "resultant_condition", "inner_boundary",
+              "outer_boundary", "bonus_max", "tolerance_at_mmc", "tolerance_at_lmc"):
+        assert k in bore
+    # ASME Y14.5-2018 (from memory): VC = MMC - t = 10.0 - 0.02
+    assert bore["virtual_condition"] == pytest.approx(9.98)
+    dowel = out["features"]["dowel"]
+    assert dowel["virtual_condition"] is None and dowel["outer_boundary"] == 9.99  # Rule #1 envelope
+    (m,) = out["mates"]
+    assert m["clearance_min"] == pytest.approx(9.98 - 9.99) and m["assembles"] is False
+    assert m["clearance_max"] == pytest.approx(10.015 - 9.98)
+    assert "caution" in out

@@ -1,0 +1,341 @@
+"""The window's one model: the current valid scene, its analysis, the what-if states, the
+focus (which mate or feature is looked at), the file path and the dirty flag.
+
+Widgets never talk to each other: they call the model's methods and observe its Qt signals,
+which are the only change notification. Every edit goes through :func:`geom.scenefile.parse`
+(the scene is turned into the same dict a TOML file decodes to, changed, and parsed), so the
+window accepts and rejects exactly what the command line does, with the same message.
+"""
+
+from __future__ import annotations
+
+import copy
+import tomllib
+from dataclasses import dataclass, replace
+from pathlib import Path
+
+from PyQt5.QtCore import QObject, pyqtSignal
+from PyQt5.QtWidgets import QUndoCommand, QUndoStack
+
+from geom import boundaries as B
+from geom.analysis import Derived, SceneResult, analyse_scene, clearance_at, mate_verdict, term
+from geom.model import Feature, Material, Scene
+from geom.scenefile import SceneError, dumps, load, parse, save
+
+# ---------------------------------------------------------------- scene <-> plain dict
+
+
+def scene_dict(scene: Scene) -> dict:
+    """The decoded-TOML form of a scene: what :func:`geom.scenefile.parse` takes."""
+    return tomllib.loads(dumps(scene))
+
+
+def scene_label(path: str | None) -> str:
+    return Path(path).name if path else "<unsaved scene>"
+
+
+def parse_dict(data: dict, path: str | None) -> Scene:
+    """Validate ``data`` with the scene-file rules; raises :class:`SceneError`."""
+    return parse(data, scene_label(path), str(Path(path).resolve()) if path else None)
+
+
+def new_scene() -> Scene:
+    """A small valid scene to start from (File > New): one hole, one pin, one mate."""
+    data = {
+        "title": "Untitled fit",
+        "units": "mm",
+        "standard": "asme",
+        "feature": [
+            {"id": "hole-1", "kind": "hole", "limits": [10.0, 10.02], "length": 10.0,
+             "tolerance": {"characteristic": "position", "value": 0.05, "material": "MMC", "datums": ["A"]}},
+            {"id": "pin-1", "kind": "pin", "limits": [9.96, 9.98], "length": 10.0,
+             "tolerance": {"characteristic": "perpendicularity", "value": 0.01, "material": "MMC",
+                           "datums": ["A"]}},
+        ],
+        "mate": [{"hole": "hole-1", "pin": "pin-1"}],
+    }
+    return parse(data, "<new scene>")
+
+
+# ---------------------------------------------------------------- what-if readouts (no Qt)
+
+
+@dataclass(frozen=True)
+class Row:
+    quantity: str
+    value: str
+    formula: str
+    constant: bool = False  # does not depend on the what-if state
+
+
+def whatif_rows(res: SceneResult, fid: str, state: B.FeatureState) -> list[Row]:
+    """Readouts of one feature at a what-if state; every number comes from geom."""
+    sc = res.scene
+    u, st = sc.units, sc.standard
+    r = res.features[fid]
+    f = r.feature
+    tol = f.tolerance
+    mmc_abbr, lmc_abbr = term("mmc", st)[0], term("lmc", st)[0]
+    rows = [Row("produced size", u.fmt(state.size),
+                f"between {mmc_abbr} {u.fmt(f.mmc)} and {lmc_abbr} {u.fmt(f.lmc)}")]
+    b = B.bonus(f, state.size)
+    bname = term("bonus", st)[0]
+    if tol is None:
+        rows.append(Row(bname, u.fmt(b), "no geometric tolerance"))
+    elif tol.material is Material.RFS:
+        rows.append(Row(bname, u.fmt(b), f"{bname} = 0 ({term('rfs', st)[1]})"))
+    else:
+        ref_key = "mmc" if tol.material is Material.MMC else "lmc"
+        ref = f.mmc if tol.material is Material.MMC else f.lmc
+        rows.append(Row(f"{bname} at this size", u.fmt(b),
+                        Derived("bonus", b, "|size - {" + ref_key + "}|", "|{} - {}|",
+                                (state.size, ref)).formula(u, st)))
+    ta = B.tolerance_allowed(f, state.size)
+    if tol is not None:
+        rows.append(Row("tolerance allowed at this size", u.fmt(ta),
+                        f"t + {bname} = {u.fmt(tol.value)} + {u.fmt(b)} = {u.fmt(ta)}"))
+        used = state.share * ta
+        rows.append(Row("tolerance used", u.fmt(used),
+                        f"{state.share * 100:.0f} % of {u.fmt(ta)}, tilted toward {state.direction_deg:.0f} deg"))
+        tilt = B.tilt_angle_deg(f, used)
+        if tilt is not None:
+            rows.append(Row("axis tilt", f"{tilt:.4f} deg",
+                            f"atan(used / L) = atan({u.fmt(used)} / {u.fmt(B.tilt_length(f))})"))
+    eff = B.effective_size(f, state)
+    sign = "-" if f.kind.value == "hole" else "+"
+    what = "clear opening" if f.kind.value == "hole" else "swept envelope"
+    rows.append(Row(f"{what} normal to A", u.fmt(eff),
+                    f"size {sign} used = {u.fmt(state.size)} {sign} {u.fmt(state.share * ta)} = {u.fmt(eff)}"))
+    vc = r.virtual_condition
+    if vc.value is not None:
+        rows.append(Row(f"{term(vc.key, st)[1]} (constant)", u.fmt(vc.value), vc.formula(u, st), constant=True))
+        if tol.material is Material.MMC:
+            # with all of the tolerance used, the boundary presented equals the VC at every size
+            gap = abs(eff - vc.value)
+            rows.append(Row(f"room left to {vc.abbr(st)}", u.fmt(gap),
+                            f"|{what} - {vc.abbr(st)}| = |{u.fmt(eff)} - {u.fmt(vc.value)}| = {u.fmt(gap)}"))
+    return rows
+
+
+@dataclass(frozen=True)
+class Verdict:
+    assembles: bool
+    headline: str  # "ASSEMBLES ..." / "INTERFERES by ..."
+    worst_case: str  # geom's worst-case verdict sentence
+    formula: str
+    whatif_clearance: float
+
+
+def mate_verdict_at(res: SceneResult, mate_index: int, states: dict[str, B.FeatureState]) -> Verdict:
+    from geom.analysis import mate_formula
+
+    sc = res.scene
+    u = sc.units
+    m = res.mates[mate_index]
+    hole, pin = sc.feature(m.hole), sc.feature(m.pin)
+    c = clearance_at(hole, pin, states[m.hole], states[m.pin])
+    fits = c >= -1e-9
+    headline = mate_verdict(c, fits, u).replace(" in the worst case", " at the sizes set")
+    return Verdict(fits, headline, mate_verdict(m.clearance_min, m.assembles, u),
+                   mate_formula(m, u, sc.standard), c)
+
+
+# ---------------------------------------------------------------- the model
+
+
+class _Edit(QUndoCommand):
+    def __init__(self, model: "SceneModel", before: Scene, after: Scene, text: str,
+                 renames: dict[str, str] | None = None):
+        super().__init__(text)
+        self.model, self.before, self.after = model, before, after
+        self.renames = renames or {}
+
+    def redo(self):
+        self.model._install(self.after, self.renames)
+
+    def undo(self):
+        self.model._install(self.before, {v: k for k, v in self.renames.items()})
+
+
+class SceneModel(QObject):
+    """The current valid scene and everything the window shows about it."""
+
+    sceneChanged = pyqtSignal()  # scene / analysis replaced (edit, undo, open, new)
+    statesChanged = pyqtSignal()  # a what-if state moved
+    focusChanged = pyqtSignal()  # another mate or feature is looked at
+    pathChanged = pyqtSignal(str)
+    dirtyChanged = pyqtSignal(bool)
+    message = pyqtSignal(str, str)  # level ("info" | "error"), text
+
+    def __init__(self, scene: Scene | None = None, path: str | None = None, parent=None):
+        super().__init__(parent)
+        self.undo_stack = QUndoStack(self)
+        self.undo_stack.cleanChanged.connect(lambda clean: self.dirtyChanged.emit(not clean))
+        self.scene: Scene = scene or new_scene()
+        self.result: SceneResult = analyse_scene(self.scene)
+        self.path: str | None = path
+        self.states: dict[str, B.FeatureState] = {}
+        self.focus: tuple[str, object] = ("feature", self.scene.features[0].id)
+        self._reset_states()
+        self._default_focus()
+
+    # ------------------------------------------------------------ reading
+
+    @property
+    def dirty(self) -> bool:
+        return not self.undo_stack.isClean()
+
+    @property
+    def label(self) -> str:
+        return scene_label(self.path)
+
+    def focus_features(self) -> list[str]:
+        """Ids of the features whose what-if controls belong to the current focus."""
+        kind, key = self.focus
+        if kind == "mate":
+            m = self.scene.mates[key]
+            return [m.hole, m.pin]
+        return [key]
+
+    def focus_mate(self) -> int | None:
+        """Index of the mate looked at, or of the first mate the focused feature is in."""
+        kind, key = self.focus
+        if kind == "mate":
+            return key
+        for i, m in enumerate(self.scene.mates):
+            if key in (m.hole, m.pin):
+                return i
+        return None
+
+    # ------------------------------------------------------------ focus and what-if
+
+    def set_focus(self, kind: str, key) -> None:
+        if kind == "mate" and not (isinstance(key, int) and 0 <= key < len(self.scene.mates)):
+            return
+        if kind == "feature" and key not in {f.id for f in self.scene.features}:
+            return
+        if (kind, key) != self.focus:
+            self.focus = (kind, key)
+            self.focusChanged.emit()
+
+    def set_state(self, fid: str, size: float | None = None, share: float | None = None,
+                  direction_deg: float | None = None) -> None:
+        """Move one feature's what-if state (size clamped to its limits, share to 0..1)."""
+        f = self.scene.feature(fid)
+        old = self.states[fid]
+        lo, hi = f.limits
+        new = B.FeatureState(
+            old.size if size is None else min(max(float(size), lo), hi),
+            old.share if share is None else min(max(float(share), 0.0), 1.0),
+            old.direction_deg if direction_deg is None else float(direction_deg) % 360.0,
+        )
+        if new != old:
+            self.states[fid] = new
+            self.statesChanged.emit()
+
+    def reset_states(self) -> None:
+        """Every feature back to the worst case: MMC, all of the tolerance used."""
+        self._reset_states(keep=False)
+        self.statesChanged.emit()
+
+    def _reset_states(self, keep: bool = True) -> None:
+        old = self.states if keep else {}
+        states = {}
+        for f in self.scene.features:
+            st = old.get(f.id)
+            lo, hi = f.limits
+            if st is not None and lo <= st.size <= hi:
+                states[f.id] = st
+            else:
+                states[f.id] = B.FeatureState(f.mmc, 1.0, st.direction_deg if st else 0.0)
+        self.states = states
+
+    def _default_focus(self) -> None:
+        self.focus = ("mate", 0) if self.scene.mates else ("feature", self.scene.features[0].id)
+
+    # ------------------------------------------------------------ edits
+
+    def try_edit(self, mutate, text: str = "edit", renames: dict[str, str] | None = None) -> SceneError | None:
+        """Apply ``mutate(data)`` to the scene's dict and parse it. Valid: pushed on the undo
+        stack and shown; invalid: nothing changes and the SceneError is returned."""
+        data = copy.deepcopy(scene_dict(self.scene))
+        mutate(data)
+        try:
+            new = parse_dict(data, self.path)
+        except SceneError as e:
+            return e
+        if new == self.scene:
+            return None
+        self.undo_stack.push(_Edit(self, self.scene, new, text, renames))
+        return None
+
+    def _install(self, scene: Scene, renames: dict[str, str] | None = None) -> None:
+        for old, new in (renames or {}).items():
+            if old in self.states:
+                self.states[new] = self.states.pop(old)
+            if self.focus == ("feature", old):
+                self.focus = ("feature", new)
+        self.scene = scene
+        self.result = analyse_scene(scene)
+        self._reset_states()
+        kind, key = self.focus
+        if (kind == "mate" and key >= len(scene.mates)) or (
+                kind == "feature" and key not in {f.id for f in scene.features}):
+            self._default_focus()
+        self.sceneChanged.emit()
+        self.statesChanged.emit()
+        self.focusChanged.emit()
+
+    # ------------------------------------------------------------ files
+
+    def replace_scene(self, scene: Scene, path: str | None) -> None:
+        """Open / New: a fresh history, clean."""
+        self.undo_stack.clear()
+        self.path = path
+        self.states = {}
+        self.scene = scene
+        self._default_focus()
+        self._install(scene)
+        self.undo_stack.setClean()
+        self.pathChanged.emit(path or "")
+        self.dirtyChanged.emit(False)
+
+    def open(self, path: str) -> None:
+        """Load a scene file (raises SceneError with the CLI's message)."""
+        self.replace_scene(load(path), str(path))
+
+    def new(self) -> None:
+        self.replace_scene(new_scene(), None)
+
+    def save(self, path: str | None = None) -> None:
+        """Atomic save; the scene written is the one shown."""
+        target = path or self.path
+        if not target:
+            raise ValueError("no file name given")
+        save(self.scene, target)
+        if target != self.path:
+            self.path = str(target)
+            self.scene = replace(self.scene, source=str(Path(target).resolve()))
+            self.pathChanged.emit(self.path)
+        self.undo_stack.setClean()
+        self.dirtyChanged.emit(False)
+        self.message.emit("info", f"saved {self.path}")
+
+    # ------------------------------------------------------------ helpers for widgets
+
+    def feature(self, fid: str) -> Feature:
+        return self.scene.feature(fid)
+
+
+def feature_index(scene: Scene, fid: str) -> int:
+    for i, f in enumerate(scene.features):
+        if f.id == fid:
+            return i
+    raise KeyError(fid)
+
+
+def rename_in_mates(data: dict, old: str, new: str) -> None:
+    for m in data.get("mate", []):
+        for role in ("hole", "pin"):
+            if m.get(role) == old:
+                m[role] = new
