@@ -163,29 +163,39 @@ def analyse_feature(f: Feature, standard: Standard = Standard.ASME) -> FeatureRe
     if tol.material is Material.MMC:
         bonus = Derived("bonus", bmax, "|{lmc} - {mmc}|", "|{} - {}|", (f.lmc, f.mmc))
         t_mmc = Derived("t_mmc", tm, "{t}", "{}", (t,))
-        t_lmc = Derived("t_lmc", tl, "{t} + bonus_max", "{} + {}", (t, bmax))
+        t_lmc = Derived("t_lmc", tl, "{t} + {bonus}", "{} + {}", (t, bmax))
         vc = Derived("vc_MMC", B.virtual_condition(f), "{mmc} " + s + " {t}", "{} " + s + " {}", (f.mmc, t))
-        rc = Derived("rc", B.resultant_condition(f), "{lmc} " + o + " {t} " + o + " bonus_max",
+        rc = Derived("rc", B.resultant_condition(f), "{lmc} " + o + " {t} " + o + " {bonus}",
                      "{} " + o + " {} " + o + " {}", (f.lmc, t, bmax))
     elif tol.material is Material.LMC:
         bonus = Derived("bonus", bmax, "|{mmc} - {lmc}|", "|{} - {}|", (f.mmc, f.lmc))
-        t_mmc = Derived("t_mmc", tm, "{t} + bonus_max", "{} + {}", (t, bmax))
+        t_mmc = Derived("t_mmc", tm, "{t} + {bonus}", "{} + {}", (t, bmax))
         t_lmc = Derived("t_lmc", tl, "{t}", "{}", (t,))
         vc = Derived("vc_LMC", B.virtual_condition(f), "{lmc} " + o + " {t}", "{} " + o + " {}", (f.lmc, t))
-        rc = Derived("rc", B.resultant_condition(f), "{mmc} " + s + " {t} " + s + " bonus_max",
+        rc = Derived("rc", B.resultant_condition(f), "{mmc} " + s + " {t} " + s + " {bonus}",
                      "{} " + s + " {} " + s + " {}", (f.mmc, t, bmax))
     else:
         bonus = Derived("bonus", 0.0, "0 (no modifier)", "{}", (0.0,))
         t_mmc = Derived("t_mmc", tm, "{t}", "{}", (t,))
         t_lmc = Derived("t_lmc", tl, "{t}", "{}", (t,))
-        vc = _none("vc_MMC", "RFS: no virtual condition; see inner/outer boundary")
-        rc = _none("rc", "RFS: no resultant condition; see inner/outer boundary")
+        mod = "no modifier (independency)" if standard is Standard.ISO else "RFS"
+        vc = _none("vc_MMC", f"{mod}: no virtual condition; see inner/outer boundary")
+        rc = _none("rc", f"{mod}: no resultant condition; see inner/outer boundary")
     # inner / outer boundary, written from the worst-case sizes at MMC and LMC
     mm_key, lm_key = ("inner", "outer") if f.kind is Kind.HOLE else ("outer", "inner")
     mm_val = inner_v if f.kind is Kind.HOLE else outer_v
     lm_val = outer_v if f.kind is Kind.HOLE else inner_v
-    mm_side = Derived(mm_key, mm_val, "{mmc} " + s + " {t_mmc}", "{} " + s + " {}", (f.mmc, tm))
-    lm_side = Derived(lm_key, lm_val, "{lmc} " + o + " {t_lmc}", "{} " + o + " {}", (f.lmc, tl))
+    if mm_val is None:  # no modifier and no envelope: independency
+        why = "no modifier and no envelope: under independency the size does not limit form"
+        mm_side, lm_side = _none(mm_key, why), _none(lm_key, why)
+        notes.append("no modifier and no envelope (independency, ISO 8015): local sizes do not "
+                     "limit form, so no worst-case boundary exists; add (E) or a modifier to bound it")
+    else:
+        if env and tol.characteristic is Characteristic.STRAIGHTNESS:
+            mm_side = Derived(mm_key, mm_val, "{mmc} (envelope: tighter than the straightness VC)", "{}", (f.mmc,))
+        else:
+            mm_side = Derived(mm_key, mm_val, "{mmc} " + s + " {t_mmc}", "{} " + s + " {}", (f.mmc, tm))
+        lm_side = Derived(lm_key, lm_val, "{lmc} " + o + " {t_lmc}", "{} " + o + " {}", (f.lmc, tl))
     inner, outer = (mm_side, lm_side) if f.kind is Kind.HOLE else (lm_side, mm_side)
 
     if tol.zone is Zone.WIDTH:
@@ -197,11 +207,14 @@ def analyse_feature(f: Feature, standard: Standard = Standard.ASME) -> FeatureRe
     if tol.projected:
         notes.append(f"projected tolerance zone: the tolerance applies over {tol.projected:g} "
                      "beyond datum A, where the mating part sits")
-    if tol.characteristic is Characteristic.PARALLELISM and tol.zone is Zone.DIAMETER and tol.datums == ("A",):
-        notes.append("a diameter zone for parallelism to a datum plane controls the axis in "
-                     "every direction; check that the drawing means this")
-    if env and tol.material is Material.MMC and t == 0:
-        notes.append("zero tolerance at MMC: the virtual condition equals MMC")
+    if tol.characteristic in (Characteristic.PARALLELISM, Characteristic.ANGULARITY) and tol.zone is Zone.DIAMETER:
+        notes.append(f"a diameter zone for {tol.characteristic.value} to a datum plane controls the axis "
+                     "in every direction; check that the drawing means this (pictures draw the axis "
+                     "in the x-z plane)")
+    if t == 0 and tol.material is not Material.RFS:
+        mc = tol.material.value if standard is Standard.ASME else {"MMC": "MMS", "LMC": "LMS"}[tol.material.value]
+        vcn = term(vc.key, standard)[0]
+        notes.append(f"zero tolerance at {mc}: {vcn} = {mc}; all tolerance comes from the departure from {mc}")
     tilt = B.tilt_angle_deg(f, max(tm, tl))
     return FeatureResult(f, mmc, lmc, bonus, t_mmc, t_lmc, vc, rc, inner, outer, tilt, env, tuple(notes))
 
@@ -243,17 +256,57 @@ def _mate_side(res: FeatureResult, which: str) -> tuple[Derived, str | None]:
     if d.value is not None:
         return d, None
     f = res.feature
-    assumed = Derived(which, f.mmc, "{mmc} (perfect form assumed)", "{}", (f.mmc,))
-    return assumed, (f"{f.id}: no worst-case boundary is defined ({d.note}); "
-                     f"the fit assumes perfect form at MMC")
+    v = B.perfect_form_boundary(f)
+    if f.tolerance is None:
+        assumed = Derived(which, v, "{mmc} (perfect form assumed)", "{}", (f.mmc,))
+    else:
+        sign = "+" if f.kind is Kind.PIN else "-"
+        assumed = Derived(which, v, "{mmc} " + sign + " {t_mmc} (perfect form assumed)", "{} " + sign + " {}",
+                          (f.mmc, B.tolerance_at_mmc(f)))
+    return assumed, (f"'{f.id}': no worst-case boundary is defined ({d.note}); "
+                     f"the fit assumes perfect form")
+
+
+def _projected_hole_side(res: FeatureResult, base: Derived) -> tuple[Derived, str]:
+    """A hole whose tolerance is projected: the pin engages the hole's own length L, where the
+    axis may wander beyond the projected zone (ASME Y14.5-2009 §7.4.1 and the fastener appendix,
+    from memory): position MMC - t(1 + 2L/P); orientation (floating zone) MMC - t L/P."""
+    f = res.feature
+    tol = f.tolerance
+    t, L, P = B.tolerance_at_mmc(f), f.length, tol.projected
+    if tol.characteristic is Characteristic.POSITION:
+        v = f.mmc - t * (1.0 + 2.0 * L / P)
+        d = Derived("inner", v, "{mmc} - {t_mmc}(1 + 2L/P)", "{} - {}*(1 + 2*{}/{})", (f.mmc, t, L, P))
+    else:
+        v = f.mmc - t * L / P
+        d = Derived("inner", v, "{mmc} - {t_mmc} L/P", "{} - {}*{}/{}", (f.mmc, t, L, P))
+    return d, (f"'{f.id}' has a projected zone ({tol.projected:g}): inside the part the axis may leave "
+               f"that zone; the pin engages the hole's own length {L:g}, so its boundary there is used")
 
 
 def analyse_mate(hole: FeatureResult, pin: FeatureResult) -> MateResult:
     hb, n1 = _mate_side(hole, "inner")
+    ht = hole.feature.tolerance
+    if n1 is None and ht is not None and ht.projected:
+        hb, n1 = _projected_hole_side(hole, hb)
     pb, n2 = _mate_side(pin, "outer")
     cmin = hb.value - pb.value
     assumptions = ["both parts seat on datum A and the pin enters normal to it"]
     assumptions += [n for n in (n1, n2) if n]
+    for r in (hole, pin):
+        tol = r.feature.tolerance
+        if tol is None or tol.characteristic is Characteristic.STRAIGHTNESS:
+            assumptions.append(f"'{r.feature.id}' has no orientation or location control to A; "
+                               "its axis is assumed normal to A")
+    pt = pin.feature.tolerance
+    hd = ht.datums if ht is not None else ()
+    pd = pt.datums if pt is not None else ()
+    extra = sorted(set(hd[1:]) | set(pd[1:]))
+    if extra:
+        assumptions.append(f"datum features {', '.join(extra)} of the two parts coincide in assembly "
+                           "(or the parts are free to float on A so the pin finds the hole)")
+    if pt is not None and pt.projected:
+        assumptions.append(f"the hole engages the pin within its projected height ({pt.projected:g})")
     return MateResult(
         hole=hole.feature.id,
         pin=pin.feature.id,
@@ -338,6 +391,7 @@ def result_to_json(res: SceneResult) -> dict:
             "mmc": _r(r.mmc.value),
             "lmc": _r(r.lmc.value),
             "virtual_condition": _r(r.virtual_condition.value),
+            "virtual_condition_kind": None if r.virtual_condition.value is None else r.virtual_condition.key[3:],
             "resultant_condition": _r(r.resultant_condition.value),
             "inner_boundary": _r(r.inner_boundary.value),
             "outer_boundary": _r(r.outer_boundary.value),

@@ -114,20 +114,37 @@ def worst_case_boundaries(feature: Feature, standard: Standard = Standard.ASME):
     """(inner, outer) boundary: the worst-case boundaries of the feature's surface.
 
     With a tolerance: the MMC-side boundary is MMC -/+ the tolerance at MMC, the LMC-side one
-    LMC +/- the tolerance at LMC (for every modifier; ASME Y14.5-2018 §§2.11-2.13, from memory).
-    Without a tolerance, only the envelope (Rule #1 / ISO (E)) bounds the MMC side, at MMC;
-    nothing relates the LMC side to a datum, so it is None.
+    LMC +/- the tolerance at LMC (for every modifier; ASME Y14.5-2009 §2.11, from memory).
+    Exceptions, each None where no boundary exists:
+
+    - no tolerance: only the envelope (Rule #1 / ISO (E)) bounds the MMC side, at MMC;
+      nothing relates the LMC side to a datum;
+    - no modifier (RFS) and no envelope (ISO 8015 independency, or ``envelope = false``):
+      the size does not limit form (two-point sizes, ISO 14405-1), so neither side is bounded;
+    - envelope together with straightness: the envelope at MMC is the tighter MMC-side boundary.
     """
     s = _sign(feature)
-    if feature.tolerance is None:
-        mm_side = feature.mmc if envelope_applies(feature, standard) else None
+    tol = feature.tolerance
+    env = envelope_applies(feature, standard)
+    if tol is None:
+        mm_side = feature.mmc if env else None
         lm_side = None
+    elif tol.material is Material.RFS and not env:
+        mm_side = lm_side = None
     else:
         mm_side = feature.mmc + s * tolerance_at_mmc(feature)
         lm_side = feature.lmc - s * tolerance_at_lmc(feature)
+        if env and tol.characteristic is Characteristic.STRAIGHTNESS:
+            mm_side = feature.mmc
     if feature.kind is Kind.HOLE:
         return mm_side, lm_side
     return lm_side, mm_side
+
+
+def perfect_form_boundary(feature: Feature) -> float:
+    """The MMC-side boundary if the feature had perfect form: MMC -/+ the tolerance at MMC."""
+    t = tolerance_at_mmc(feature) or 0.0
+    return feature.mmc + _sign(feature) * t
 
 
 def tilt_length(feature: Feature) -> float:

@@ -197,11 +197,16 @@ class Scene:
 def envelope_applies(feature: Feature, standard: Standard) -> bool:
     """Does the envelope requirement (perfect form at MMC) apply to this feature?
 
-    ASME Y14.5-2018 §5.8.1 (Rule #1, from memory): applies by default.
+    ASME Y14.5-2018 Rule #1 (from memory): applies by default, except that a straightness
+    tolerance on the derived median line overrides it (its boundary is the virtual condition).
     ISO 8015:2011 independency: only where the envelope is indicated (ISO 14405-1 (E)).
+    An explicit ``envelope = true/false`` in the scene always wins.
     """
     if feature.envelope is not None:
         return feature.envelope
+    tol = feature.tolerance
+    if tol is not None and tol.characteristic is Characteristic.STRAIGHTNESS:
+        return False
     return standard is Standard.ASME
 
 

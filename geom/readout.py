@@ -70,11 +70,14 @@ def feature_heading(r: FeatureResult, units: Units) -> str:
 
 def mate_lines(m: MateResult, units: Units, standard: Standard) -> list[str]:
     u = units.value
+    mm, lm = term("mmc", standard)[0], term("lmc", standard)[0]
     return [
         f"mate: hole '{m.hole}' with pin '{m.pin}'",
         f"  worst-case clearance  {mate_formula(m, units, standard)} {u}",
-        f"  from sizes alone      min = {units.fmt(m.clearance_min_size, signed=True)} {u} (hole MMC - pin MMC), "
-        f"max = {units.fmt(m.clearance_max, signed=True)} {u} (hole LMC - pin LMC)",
+        f"    hole boundary       {m.hole_boundary.formula(units, standard)}",
+        f"    pin boundary        {m.pin_boundary.formula(units, standard)}",
+        f"  from sizes alone      min = {units.fmt(m.clearance_min_size, signed=True)} {u} (hole {mm} - pin {mm}), "
+        f"max = {units.fmt(m.clearance_max, signed=True)} {u} (hole {lm} - pin {lm})",
         f"  verdict               {mate_verdict(m.clearance_min, m.assembles, units)}",
         *[f"  assumes               {a}" for a in m.assumptions],
     ]
@@ -95,7 +98,7 @@ def render_text(res: SceneResult) -> str:
     for fid, fr in res.fasteners.items():
         fa = fr.fastener
         out.append(f"fastener '{fid}' ({fa.kind}): F = {u.fmt(fa.fastener)}, H = {u.fmt(fa.hole)} {u.value}")
-        lbl = "position tolerance, each part" if fa.kind == "fixed" else "position tolerance, both parts"
+        lbl = "position tolerance, each part"
         out.append(f"  {lbl}: T = {fr.position_tolerance.formula(u, st).split('= ', 1)[1]}"
                    + (" (projected zone on the threaded part)" if fa.kind == "fixed" else ""))
         if fr.position_tolerance_unprojected is not None:

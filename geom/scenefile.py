@@ -34,6 +34,7 @@ from .model import (
     Tolerance,
     Units,
     Zone,
+    axis_direction,
 )
 
 TOP_KEYS = ("title", "units", "standard", "feature", "mate", "fastener", "report")
@@ -88,7 +89,10 @@ class _Ctx:
     def number(self, v, path, positive=False, nonneg=False):
         if isinstance(v, bool) or not isinstance(v, (int, float)):
             self.fail(path, f"expected a number, got {_show(v)}")
-        v = float(v)
+        try:
+            v = float(v)
+        except OverflowError:
+            self.fail(path, f"expected a number of sensible size, got an integer with {len(str(v))} digits")
         if not math.isfinite(v):
             self.fail(path, f"expected a finite number, got {v}")
         if positive and v <= 0:
@@ -125,6 +129,8 @@ def _show(v: Any) -> str:
         return f"a list of {len(v)}"
     if isinstance(v, dict):
         return "a table"
+    if hasattr(v, "isoformat"):
+        return f"the date/time {v.isoformat()} (quote it if you meant text)"
     return type(v).__name__
 
 
@@ -146,6 +152,9 @@ def _tolerance(c: _Ctx, v, path) -> Tolerance:
         c.fail(_join(path, "datums"), "expected no datums: straightness is a form tolerance and takes none")
     if ch is not Characteristic.STRAIGHTNESS and not datums:
         c.fail(_join(path, "datums"), f"expected at least one datum ({ch.value} is related to datum A)")
+    if datums and datums[0] != "A":
+        c.fail(_join(path, "datums"), f"expected datum A first (matezone's frame takes A as the primary "
+                                      f"datum plane, z = 0), got {datums!r}")
     projected = None
     if "projected" in v:
         projected = c.number(v["projected"], _join(path, "projected"), positive=True)
@@ -211,7 +220,17 @@ def _feature(c: _Ctx, v, i: int) -> Feature:
         env = v["envelope"]
     tol = _tolerance(c, v["tolerance"], _join(path, "tolerance")) if "tolerance" in v else None
     meas = _measured(c, v["measured"], _join(path, "measured")) if "measured" in v else None
-    return Feature(fid, kind, (lo, hi), length, at, tol, env, meas, name)
+    feat = Feature(fid, kind, (lo, hi), length, at, tol, env, meas, name)
+    if tol is not None:
+        from .boundaries import worst_case_boundaries
+
+        smallest = min(b for b in worst_case_boundaries(feat) if b is not None) if any(
+            b is not None for b in worst_case_boundaries(feat)) else lo
+        if smallest <= 0:
+            c.fail(_join(path, "tolerance.value"),
+                   f"expected a tolerance that leaves a boundary > 0; with {tol.value:g} the smallest "
+                   f"worst-case boundary is {smallest:g}")
+    return feat
 
 
 def _fastener(c: _Ctx, v, i: int) -> Fastener:
@@ -236,6 +255,15 @@ def _fastener(c: _Ctx, v, i: int) -> Fastener:
             if k in v:
                 c.fail(_join(path, k), "expected no such key: only a fixed fastener has a threaded part")
     return Fastener(fid, kind, F, H, D, P)
+
+
+def _orient(f: Feature) -> str:
+    t = f.tolerance
+    if t is None or t.characteristic not in (Characteristic.PARALLELISM, Characteristic.ANGULARITY):
+        return "normal to datum A"
+    if t.characteristic is Characteristic.PARALLELISM:
+        return "parallel to datum A"
+    return f"at {t.angle:g} deg to datum A"
 
 
 def parse(data: dict, file: str = "<scene>", source: str | None = None) -> Scene:
@@ -270,6 +298,11 @@ def parse(data: dict, file: str = "<scene>", source: str | None = None) -> Scene
             if by_id[ref].kind.value != role:
                 c.fail(_join(path, role), f"expected a {role} feature, but {ref!r} is a {by_id[ref].kind.value}")
             ends[role] = ref
+        h, pn = by_id[ends["hole"]], by_id[ends["pin"]]
+        dh, dp = axis_direction(h.tolerance), axis_direction(pn.tolerance)
+        if max(abs(a - b) for a, b in zip(dh, dp)) > 1e-12:
+            c.fail(_join(path, "pin"), f"expected a pin whose axis runs the same way as the hole's; "
+                   f"{h.id!r} is {_orient(h)} but {pn.id!r} is {_orient(pn)}")
         mates.append(Mate(ends["hole"], ends["pin"]))
     fasteners = []
     fids: set[str] = set()
@@ -294,6 +327,7 @@ def parse(data: dict, file: str = "<scene>", source: str | None = None) -> Scene
 
 
 def loads(text: str, file: str = "<scene>", source: str | None = None) -> Scene:
+    text = text.removeprefix("\ufeff")  # a byte-order mark some editors write
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as e:

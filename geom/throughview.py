@@ -13,8 +13,9 @@ sizes tolerances use, far below a micrometre: 0.009 um for a 10 mm bore tilted 0
 For steep tilts the nearest point leaves the ellipse's vertex: see exact_opening_diameter.
 A pin's sections sweep the union; its smallest enclosing circle is d / cos θ + t.
 
-The geometry is computed with shapely (polygons whose vertices straddle the true curve so the
-chord error is split both ways, under 1 nm here); the closed form is kept for checking.
+The geometry is computed with shapely (polygons whose vertices straddle the true curve; with
+the default 1024 vertices the inscribed diameter of a 10 mm bore comes out about 0.02 um small,
+on the safe side); the closed form is kept for checking.
 
 >>> tv = clear_opening(10.0, 0.02, 15.0)
 >>> round(tv.inscribed_diameter, 4), round(tv.exact_diameter, 4)

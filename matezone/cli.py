@@ -22,7 +22,7 @@ def repo_root() -> Path:
 
 def demo_scene() -> Path:
     """The bundled demo scene (opened by ``matezone`` with no arguments)."""
-    return repo_root() / "scenes" / "pump_cover_dowel.toml"
+    return repo_root() / "scenes" / "gearbox_endcap_dowel.toml"
 
 
 class UserError(Exception):

@@ -168,3 +168,22 @@ def test_boundaries_enclose_the_size_range(lo, span, t, kind, material):
     inner, outer = worst_case_boundaries(f)
     assert inner <= lo - t + 1e-9 and outer >= lo + span + t - 1e-9
     assert 0.0 <= bonus(f, lo + span / 3) <= span + 1e-12
+
+
+def test_iso_rfs_without_envelope_has_no_boundary():
+    # ISO 8015:2011 independency with ISO 14405-1 two-point sizes (from memory): with no modifier
+    # and no (E), the size does not limit form, so no worst-case boundary exists.
+    h = feat("hole", 10.0, 10.1, 0.05, "RFS")
+    assert worst_case_boundaries(h, Standard.ISO) == (None, None)
+    assert worst_case_boundaries(h.with_(envelope=True), Standard.ISO) == pytest.approx((9.95, 10.15))
+    # ISO 2692 (from memory): the MMR defines the MMVC as a boundary even under independency.
+    assert worst_case_boundaries(feat("hole", 10.0, 10.1, 0.05, "MMC"), Standard.ISO)[0] == pytest.approx(9.95)
+
+
+def test_straightness_overrides_rule_one_but_explicit_envelope_wins():
+    # ASME Y14.5-2018 (from memory): straightness of the derived median line overrides Rule #1;
+    # with an explicit envelope the MMC envelope is the tighter outer boundary.
+    p = feat("pin", 6.0, 6.05, 0.03, "MMC", ch="straightness")
+    assert not analyse_feature(p, Standard.ASME).envelope
+    assert worst_case_boundaries(p)[1] == pytest.approx(6.08)
+    assert worst_case_boundaries(p.with_(envelope=True), Standard.ISO)[1] == pytest.approx(6.05)

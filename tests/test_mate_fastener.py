@@ -109,3 +109,30 @@ def test_floating_fastener():
     r = analyse_fastener(Fastener("s", "floating", fastener=10.0, hole=11.0))
     assert r.position_tolerance.value == pytest.approx(1.0)
     assert r.position_tolerance_unprojected is None
+
+
+def test_projected_hole_mate_uses_boundary_over_the_engaged_length():
+    # ASME Y14.5-2009 §7.4.1 projected zone and the fastener appendix geometry (from memory):
+    # the axis may leave a zone projected over P by t L / P inside the part (orientation), or
+    # t (1 + 2L/P) across the true position (position). Arithmetic ours.
+    tol = Tolerance(Characteristic.PERPENDICULARITY, 0.020, material=Material.MMC, datums=("A",), projected=12.0)
+    h = Feature("h", Kind.HOLE, (10.0, 10.015), 15.0, tolerance=tol)
+    p = Feature("p", Kind.PIN, (9.985, 9.995), 15.0, tolerance=Tolerance(
+        Characteristic.POSITION, 0.01, material=Material.MMC, datums=("A", "B")))
+    m = analyse_mate(analyse_feature(h), analyse_feature(p))
+    assert m.hole_boundary.value == pytest.approx(10.0 - 0.020 * 15 / 12)
+    assert m.clearance_min == pytest.approx(9.975 - 10.005)
+    assert any("projected zone" in a for a in m.assumptions)
+    assert any("datum features B" in a for a in m.assumptions)
+    pos = Feature("h", Kind.HOLE, (10.0, 10.015), 15.0, tolerance=Tolerance(
+        Characteristic.POSITION, 0.020, material=Material.MMC, datums=("A", "B"), projected=12.0))
+    m2 = analyse_mate(analyse_feature(pos), analyse_feature(p))
+    assert m2.hole_boundary.value == pytest.approx(10.0 - 0.020 * (1 + 2 * 15 / 12))
+
+
+def test_mate_with_untoleranced_pin_states_its_assumption():
+    # ASME Y14.5-2018 Rule #1 (from memory) bounds form at MMC but not orientation to A.
+    p = Feature("p", Kind.PIN, (9.9, 9.95), 10.0)
+    m = analyse_mate(analyse_feature(hole(10.0, 10.05, 0.02)), analyse_feature(p))
+    assert m.pin_boundary.value == 9.95
+    assert any("no orientation or location control" in a for a in m.assumptions)

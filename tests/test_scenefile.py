@@ -155,3 +155,29 @@ def test_json_output(capsys, tmp_path):
     assert m["clearance_min"] == pytest.approx(9.98 - 9.99) and m["assembles"] is False
     assert m["clearance_max"] == pytest.approx(10.015 - 9.98)
     assert "caution" in out
+
+
+MORE_BAD = [
+    # (scene text, field path fragment, message fragment) — found by an independent review
+    (edit("length = 15.0", "length = 1" + "0" * 400), "length", "integer with 401 digits"),
+    (edit("value = 0.02", "value = 10.5"), "tolerance.value", "smallest worst-case boundary is -0.5"),
+    (edit('datums = ["A"]', 'datums = ["B"]'), "datums", "expected datum A first"),
+    (edit("length = 15.0", "length = 2026-12-02"), "length", "quote it"),
+    (edit('characteristic = "perpendicularity"', 'characteristic = "parallelism"'), "mate[0].pin",
+     "runs the same way as the hole's"),
+]
+
+
+@pytest.mark.parametrize("text, path, fragment", MORE_BAD, ids=[f"more{i}" for i in range(len(MORE_BAD))])
+def test_more_bad_scenes(tmp_path, capsys, text, path, fragment):
+    f = tmp_path / "broken.toml"
+    f.write_text(text, encoding="utf-8")
+    assert main(["analyze", str(f)]) == 2
+    err = capsys.readouterr().err
+    assert path in err and fragment in err, err
+
+
+def test_byte_order_mark_is_accepted(tmp_path):
+    f = tmp_path / "bom.toml"
+    f.write_bytes(b"\xef\xbb\xbf" + GOOD.encode())
+    assert load(f).features[0].id == "bore"

@@ -1,0 +1,159 @@
+"""CSV files of measured surface points: ``x,y,z`` with a header row and an optional ``section``
+column, in the part's datum frame (datum A is z = 0; the nominal axis runs along +z from the
+feature's basic location).
+
+Every problem raises :class:`PointsError` naming the file and, where there is one, the line:
+``bore.csv: line 7: column 'y': expected a number, got 'n/a'``.
+
+>>> import io
+>>> pc = parse_points(io.StringIO("x,y,z\\n1,0,0\\n0,1,0\\n-1,0,0\\n"), "demo.csv")
+>>> pc.xyz.shape, pc.sections is None
+((3, 3), True)
+"""
+
+from __future__ import annotations
+
+import io
+import math
+import os
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+
+COLUMNS = ("x", "y", "z")
+SECTION = "section"
+
+
+class PointsError(ValueError):
+    """A points file that cannot be used, with file, line and what was expected."""
+
+    def __init__(self, file: str, message: str, line: int | None = None):
+        self.file, self.line, self.detail = file, line, message
+        where = f"{file}: line {line}: " if line is not None else f"{file}: "
+        super().__init__(where + message)
+
+
+@dataclass(frozen=True)
+class PointCloud:
+    """Points (n, 3) in the datum frame, their section labels (n,) or None, and the source."""
+
+    xyz: np.ndarray
+    sections: np.ndarray | None
+    file: str
+    lines: np.ndarray | None = None  # line number of each point in the file (for messages)
+
+
+def _header(first: str, file: str) -> tuple[list[str], dict[str, int]]:
+    names = [h.strip().strip('"').strip().lower() for h in first.split(",")]
+    idx = {}
+    for k in COLUMNS + (SECTION,):
+        if k in names:
+            idx[k] = names.index(k)
+    missing = [k for k in COLUMNS if k not in idx]
+    if missing:
+        try:
+            [float(h) for h in names]
+            raise PointsError(file, "expected a header row naming the columns (x,y,z[,section]), "
+                                    "got numbers", 1)
+        except ValueError:
+            pass
+        raise PointsError(file, f"header: missing column {', '.join(repr(m) for m in missing)}; "
+                                f"expected x,y,z and optionally section, got {first.strip()!r}", 1)
+    return names, idx
+
+
+def _slow_parse(lines: list[str], file: str, names: list[str], idx: dict[str, int]) -> PointCloud:
+    """Line-by-line parse that names the first bad line."""
+    xyz, secs, nos = [], [], []
+    for no, raw in enumerate(lines[1:], start=2):
+        s = raw.strip()
+        if not s or s.startswith("#"):
+            continue
+        cells = [c.strip() for c in s.split(",")]
+        if len(cells) != len(names):
+            raise PointsError(file, f"expected {len(names)} values ({','.join(names)}), got {len(cells)}", no)
+        row = []
+        for k in COLUMNS:
+            cell = cells[idx[k]]
+            try:
+                v = float(cell)
+            except ValueError:
+                raise PointsError(file, f"column {k!r}: expected a number, got {cell!r}", no) from None
+            if not math.isfinite(v):
+                raise PointsError(file, f"column {k!r}: expected a finite number, got {cell!r}", no)
+            row.append(v)
+        xyz.append(row)
+        nos.append(no)
+        if SECTION in idx:
+            cell = cells[idx[SECTION]]
+            if not cell:
+                raise PointsError(file, "column 'section': expected a label, got an empty cell", no)
+            secs.append(cell)
+    if not xyz:
+        raise PointsError(file, "no points: expected rows of x,y,z after the header")
+    sections = None
+    if SECTION in idx:
+        try:
+            sections = np.array([float(s) for s in secs])
+        except ValueError:
+            sections = np.array(secs)
+    return PointCloud(np.array(xyz, float), sections, file, np.array(nos))
+
+
+def parse_points(src, file: str = "<points>") -> PointCloud:
+    """Read points from a text stream (fast path: :func:`numpy.loadtxt`; on any problem the file
+    is read again line by line to name the bad line)."""
+    text = src.read()
+    lines = text.splitlines()
+    first_i = next((i for i, s in enumerate(lines) if s.strip()), None)
+    if first_i is None:
+        raise PointsError(file, "empty file: expected a header row x,y,z[,section] and points")
+    lines = lines[first_i:]
+    names, idx = _header(lines[0], file)
+    cols = [idx[k] for k in COLUMNS] + ([idx[SECTION]] if SECTION in idx else [])
+    try:
+        arr = np.loadtxt(io.StringIO(text), delimiter=",", skiprows=first_i + 1, usecols=cols,
+                         ndmin=2, comments="#")
+    except ValueError:
+        return _slow_parse(lines, file, names, idx)
+    if arr.shape[0] == 0 or arr.shape[1] != len(cols) or not np.isfinite(arr).all():
+        return _slow_parse(lines, file, names, idx)
+    # loadtxt ignores surplus columns; a short or long row must still be an error
+    ncols = {s.count(",") for s in lines[1:] if s.strip() and not s.lstrip().startswith("#")}
+    if ncols != {len(names) - 1}:
+        return _slow_parse(lines, file, names, idx)
+    xyz = np.ascontiguousarray(arr[:, :3])
+    sections = arr[:, 3].copy() if SECTION in idx else None
+    return PointCloud(xyz, sections, file)
+
+
+def read_points(path: str | os.PathLike) -> PointCloud:
+    """Read a points CSV file; errors name the file (and the line)."""
+    p = Path(path)
+    try:
+        raw = p.read_bytes()
+    except FileNotFoundError:
+        raise PointsError(str(path), "no such file") from None
+    except IsADirectoryError:
+        raise PointsError(str(path), "is a folder, expected a .csv file of points") from None
+    except OSError as e:
+        raise PointsError(str(path), f"cannot be read ({e.strerror})") from None
+    try:
+        text = raw.decode("utf-8-sig")
+    except UnicodeDecodeError as e:
+        raise PointsError(str(path), f"expected UTF-8 text, got the byte 0x{raw[e.start]:02x} at offset {e.start}") from None
+    return parse_points(io.StringIO(text), str(path))
+
+
+def write_points(path: str | os.PathLike, xyz: np.ndarray, sections=None, decimals: int = 6) -> None:
+    """Write points as CSV (x,y,z[,section]) with a header row."""
+    xyz = np.asarray(xyz, float)
+    with open(path, "w", encoding="utf-8", newline="\n") as fh:
+        if sections is None:
+            fh.write("x,y,z\n")
+            np.savetxt(fh, xyz, delimiter=",", fmt=f"%.{decimals}f")
+        else:
+            fh.write("x,y,z,section\n")
+            for (x, y, z), s in zip(xyz, sections):
+                fh.write(f"{x:.{decimals}f},{y:.{decimals}f},{z:.{decimals}f},{s}\n")
