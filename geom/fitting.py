@@ -99,21 +99,48 @@ def inscribed_circle(xy: np.ndarray, centre_hint=None) -> tuple[float, float, fl
         raise FitError(f"a circle needs at least 3 points, got {len(xy)}")
     m = xy.mean(axis=0) if centre_hint is None else np.asarray(centre_hint, float)
     q = xy - m
+    rho = np.hypot(q[:, 0], q[:, 1])
+    rmin, rmax = float(rho.min()), float(rho.max())
+    # Fast path: only points near the smallest radius can touch the inscribed circle. Solve on
+    # them; accept the answer only if it holds for every point (checked below), else use all.
+    band = 0.2 * (rmax - rmin)
+    sub = np.flatnonzero(rho <= rmin + band)
+    if 3 <= len(sub) < len(q):
+        got = _inscribed_vertex(q[sub], rmin)
+        if got is not None:
+            c, r_sub = got
+            r_all = float(np.hypot(*(q - c).T).min())
+            # a point outside the subset is at >= rmin + band from m, so >= rmin + band - |c| from c;
+            # the circle (radius <= rmin + |c|) cannot reach it while 2 |c| < band
+            if 2 * float(np.hypot(*c)) < band and abs(r_all - r_sub) <= 1e-12 * max(1.0, rmax):
+                return (float(c[0] + m[0]), float(c[1] + m[1]), r_all)
+    got = _inscribed_vertex(q, rmin)
+    if got is None:
+        raise FitError("no inscribed circle: the points do not surround any centre")
+    c, _ = got
+    rad = float(np.hypot(*(q - c).T).min())
+    return (float(c[0] + m[0]), float(c[1] + m[1]), rad)
+
+
+def _inscribed_vertex(q: np.ndarray, rmin: float):
+    """Largest empty circle of points ``q`` centred inside their convex hull: (centre, radius),
+    or None. The centre is a Voronoi vertex (circumcentre of a Delaunay triangle)."""
+    from scipy.spatial import Delaunay
+
     try:
         tri = Delaunay(q)
-    except Exception as e:  # qhull: all points collinear or coincident
-        raise FitError(f"points span no area ({type(e).__name__})") from None
+    except Exception:  # qhull: all points collinear or coincident
+        return None
     s = tri.simplices
     cc = _circumcentres(q[s[:, 0]], q[s[:, 1]], q[s[:, 2]])
     ok = np.isfinite(cc).all(axis=1)
     ok[ok] = tri.find_simplex(cc[ok]) >= 0
     if not ok.any():
-        raise FitError("no inscribed circle: the points do not surround any centre")
+        return None
     r = np.hypot(*(cc - q[s[:, 0]]).T)
     r[~ok] = -np.inf
-    best = cc[int(np.argmax(r))]
-    rad = float(np.hypot(*(q - best).T).min())
-    return (float(best[0] + m[0]), float(best[1] + m[1]), rad)
+    i = int(np.argmax(r))
+    return cc[i], float(r[i])
 
 
 def circumscribed_circle(xy: np.ndarray, seed: int = 0) -> tuple[float, float, float]:

@@ -63,10 +63,11 @@ def _header(first: str, file: str) -> tuple[list[str], dict[str, int]]:
     return names, idx
 
 
-def _slow_parse(lines: list[str], file: str, names: list[str], idx: dict[str, int]) -> PointCloud:
-    """Line-by-line parse that names the first bad line."""
+def _slow_parse(lines: list[str], file: str, names: list[str], idx: dict[str, int], skipped: int = 0) -> PointCloud:
+    """Line-by-line parse that names the first bad line (``lines`` start at the header, which is
+    line ``skipped + 1`` of the file)."""
     xyz, secs, nos = [], [], []
-    for no, raw in enumerate(lines[1:], start=2):
+    for no, raw in enumerate(lines[1:], start=skipped + 2):
         s = raw.strip()
         if not s or s.startswith("#"):
             continue
@@ -105,24 +106,24 @@ def parse_points(src, file: str = "<points>") -> PointCloud:
     """Read points from a text stream (fast path: :func:`numpy.loadtxt`; on any problem the file
     is read again line by line to name the bad line)."""
     text = src.read()
-    lines = text.splitlines()
-    first_i = next((i for i, s in enumerate(lines) if s.strip()), None)
-    if first_i is None:
+    stripped = text.lstrip()
+    if not stripped:
         raise PointsError(file, "empty file: expected a header row x,y,z[,section] and points")
-    lines = lines[first_i:]
-    names, idx = _header(lines[0], file)
+    first_i = text[: len(text) - len(stripped)].count("\n")  # blank lines before the header
+    head = stripped.split("\n", 1)[0]
+    names, idx = _header(head, file)
     cols = [idx[k] for k in COLUMNS] + ([idx[SECTION]] if SECTION in idx else [])
     try:
         arr = np.loadtxt(io.StringIO(text), delimiter=",", skiprows=first_i + 1, usecols=cols,
                          ndmin=2, comments="#")
     except ValueError:
-        return _slow_parse(lines, file, names, idx)
+        return _slow_parse(text.splitlines()[first_i:], file, names, idx, first_i)
     if arr.shape[0] == 0 or arr.shape[1] != len(cols) or not np.isfinite(arr).all():
-        return _slow_parse(lines, file, names, idx)
-    # loadtxt ignores surplus columns; a short or long row must still be an error
-    ncols = {s.count(",") for s in lines[1:] if s.strip() and not s.lstrip().startswith("#")}
-    if ncols != {len(names) - 1}:
-        return _slow_parse(lines, file, names, idx)
+        return _slow_parse(text.splitlines()[first_i:], file, names, idx, first_i)
+    # loadtxt ignores surplus columns; a long row must still be an error: count the commas
+    # (cheap), and on any mismatch let the line-by-line parse find the line
+    if text.count(",") != (len(names) - 1) * (arr.shape[0] + 1):
+        return _slow_parse(text.splitlines()[first_i:], file, names, idx, first_i)
     xyz = np.ascontiguousarray(arr[:, :3])
     sections = arr[:, 3].copy() if SECTION in idx else None
     return PointCloud(xyz, sections, file)
