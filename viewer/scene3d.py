@@ -1,0 +1,1131 @@
+"""The 3D scene: a geom result plus a what-if state in, named meshes out; headless rendering.
+
+Pure builders (no Qt): :func:`build_mate_scene` and :func:`build_feature_scene` return a frozen
+:class:`Scene3D` of layers of PyVista meshes with their ``add_mesh`` styles, 3D labels, the
+readouts printed on the picture, a legend and three cameras. :func:`add_to_plotter` puts a scene
+into any ``pyvista.Plotter`` (the Qt window's ``QtInteractor`` is one); :func:`render_image`
+writes an off-screen PNG.
+
+Geometry (the datum frame of :mod:`geom.placement`): datum A is z = 0, the part occupies
+0 <= z <= length, a projected zone lies at -projected <= z <= 0. Surfaces around an axis are
+right circular cylinders about that axis, cut by planes parallel to A (so their ends sit on the
+part's faces). Tolerances are far too small to see at true scale, so the drawing applies a
+*radial exaggeration* k about the reference radius R0 (the hole's MMC radius): a lateral
+deviation e of an axis from the zone axis is drawn as k*e and a radius r as R0 + k*(r - R0).
+Zones, gaps, tilts and size differences all grow by k together and stay in proportion; lengths
+along the axis are true. k = 1 draws true geometry. The clearance colouring is always computed
+on the TRUE geometry (k = 1), whatever k the picture uses.
+
+Clearance scalars: ``gap`` is the true local radial gap from each point of the mating pin's
+surface to the hole's surface (negative: material overlap); ``clearance`` = 2 * gap, the
+diametral clearance a uniform gap of that size would give, so its minimum over the surface is
+the fit's worst-case clearance as :func:`geom.analysis.clearance_at` states it (hole opening
+minus pin envelope, both normal to A), to second order in the tilt angle.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field, replace
+from typing import Any
+
+import numpy as np
+import pyvista as pv
+
+from geom.analysis import FIT_SLACK, SceneResult, clearance_at, mate_formula, mate_verdict, term
+from geom.boundaries import FeatureState, bonus, effective_size, tolerance_allowed
+from geom.model import Characteristic, Feature, Kind, Material, Units, Zone
+from geom.placement import AxisPlacement, worst_case_axis
+
+from . import style as S
+
+LAYERS = (
+    "part",  # the part around the hole (block with the hole through it) / under the pin, translucent
+    "datum",  # datum plane A and the datum feature symbol
+    "zone",  # tolerance zone at the produced size
+    "zone_axis",  # axis of the zone (true position, or the floating zone's axis)
+    "axis",  # worst-case actual axes (and their entry/exit points)
+    "surface",  # the feature's surface at the produced size around its actual axis
+    "vc",  # the mating-side worst-case boundary: VC (MMVS) at MMC, IB/OB for RFS
+    "rc",  # the opposite boundary: RC (hidden by default)
+    "mate",  # the mating pin (or hole) at its own worst case, coloured by clearance
+    "clearance",  # the tightest spot(s) and the gap there
+    "projected",  # projected tolerance zone region: axis extension, mating part, fastener
+    "labels",  # 3D text labels
+    "readouts",  # numbers on the picture and the exaggeration caption
+    "legend",  # colour legend and the clearance scalar bar
+)
+HIDDEN_BY_DEFAULT = frozenset({"rc"})
+VIEWS = ("iso", "top", "section")
+
+N_PHI = 96  # vertices round a surface (divisible by 8: vertices on +-x, +-y and the diagonals)
+N_PHI_CAGE = 96  # vertices round a boundary ring (wireframe)
+N_Z_MATE = 13  # rings along the mating surface (clearance colouring)
+N_FINE = 2048  # samples round the ends when locating the tightest spot
+
+
+# --------------------------------------------------------------------------- data
+
+
+@dataclass(frozen=True)
+class Layer:
+    """One mesh of a layer, with the keyword arguments for ``Plotter.add_mesh``."""
+
+    name: str
+    mesh: pv.PolyData
+    style: dict = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class Label:
+    """A 3D text label: anchor point (drawn coordinates), text, colour, size."""
+
+    point: tuple[float, float, float]
+    text: str
+    colour: str = S.TEXT
+    size: int = 15
+    layer: str = "labels"
+    justify: str = "left"  # which way the text runs from the point: "left" (text to the right) or "right"
+
+
+Camera = tuple[tuple[float, float, float], tuple[float, float, float], tuple[float, float, float]]
+
+
+@dataclass(frozen=True)
+class Scene3D:
+    title: str
+    layers: dict[str, tuple[Layer, ...]]  # layer name -> meshes (only layers with content)
+    labels: tuple[Label, ...]
+    readouts: tuple[str, ...]  # the numbers on the picture, one line each
+    legend: tuple[tuple[str, str], ...]  # (what it means, colour)
+    cameras: dict[str, Camera]  # view -> (position, focal point, view up)
+    exaggeration: float  # radial exaggeration k (1.0: true geometry)
+    units: Units
+    caption: str = ""  # "radial deviations x k" statement
+    verdict: str = ""
+    verdict_colour: str = S.TEXT
+    clearance: float | None = None  # what-if worst clearance (true, diametral) in scene units
+    tightest: float | None = None  # smallest 'clearance' scalar found on the surface (true)
+    scalar_bar: dict | None = None  # title, clim of the clearance colouring
+    legend_layers: tuple[str, ...] = ()  # layer each legend row belongs to
+    parallel_scale: dict[str, float] = field(default_factory=dict)  # views drawn in parallel projection
+    section: tuple[tuple[float, float, float], tuple[float, float, float]] = ((0, 0, 0), (0, 1, 0))  # origin, normal
+    kind: str = "mate"  # "mate" or "feature"
+    feature_ids: tuple[str, ...] = ()
+    states: dict[str, FeatureState] = field(default_factory=dict)
+    notes: tuple[str, ...] = ()
+    window_centre: tuple[float, float] = (0.26, 0.27)  # camera window centre: picture shifted left/down
+
+    def meshes(self, layer: str) -> tuple[pv.PolyData, ...]:
+        return tuple(item.mesh for item in self.layers.get(layer, ()))
+
+    def find(self, layer: str, name: str) -> Layer:
+        for item in self.layers.get(layer, ()):
+            if item.name == name:
+                return item
+        raise KeyError(f"{layer}/{name}")
+
+
+# --------------------------------------------------------------------------- exaggeration
+
+
+NICE = (8.0, 6.0, 5.0, 4.0, 3.0, 2.5, 2.0, 1.5, 1.0)
+
+
+def _nice_floor(x: float) -> float:
+    """Largest of 1, 1.5, 2, 2.5, 3, 4, 5, 6, 8 x 10^n not above x (at least 1)."""
+    if x <= 1.0:
+        return 1.0
+    e = 10.0 ** math.floor(math.log10(x))
+    for m in NICE:
+        if m * e <= x * (1 + 1e-12):
+            return m * e
+    return e
+
+
+def _zone_max(f: Feature) -> float:
+    if f.tolerance is None:
+        return 0.0
+    return max(tolerance_allowed(f, f.mmc), tolerance_allowed(f, f.lmc))
+
+
+def _zone_mmc(f: Feature) -> float:
+    return 0.0 if f.tolerance is None else tolerance_allowed(f, f.mmc)
+
+
+def _involved(res: SceneResult, mate_index: int | None, feature_id: str | None) -> list[Feature]:
+    sc = res.scene
+    if mate_index is not None:
+        m = sc.mates[mate_index]
+        return [sc.feature(m.hole), sc.feature(m.pin)]
+    if feature_id is not None:
+        return [sc.feature(feature_id)]
+    return list(sc.features)
+
+
+def auto_exaggeration(res: SceneResult, mate_index: int | None = None, feature_id: str | None = None,
+                      target: float = 0.10) -> float:
+    """Radial exaggeration that draws the largest tolerance zone of the worst case (every
+    feature at MMC; computed from the scene, not from a what-if state, so it does not jump
+    while a slider moves) at about ``target`` times the hole diameter, rounded down to a round
+    number (:data:`NICE` x 10^n), and never so large that a drawn radius falls
+    below a third of the reference radius. Without any zone the size tolerance is used."""
+    feats = _involved(res, mate_index, feature_id)
+    ref = feats[0]
+    D = ref.mmc
+    dev = max(_zone_mmc(f) for f in feats)
+    if dev <= 0:
+        dev = max(f.size_tolerance for f in feats)
+    if dev <= 0 or D <= 0:
+        return 1.0
+    k = target * D / dev
+    R0 = D / 2.0
+    r_min = R0
+    for f in feats:
+        lo = min(f.limits) - _zone_max(f)  # smallest radius any drawn boundary can have
+        r_min = min(r_min, lo / 2.0)
+    if r_min < R0:
+        k = min(k, (2.0 / 3.0) * R0 / (R0 - r_min))
+    return _nice_floor(k)
+
+
+@dataclass(frozen=True)
+class _Ex:
+    """The drawing transform: lateral deviations and radii exaggerated by k about (c, R0)."""
+
+    k: float
+    c: tuple[float, float]
+    R0: float
+
+    def pts(self, p: np.ndarray) -> np.ndarray:
+        q = np.array(p, dtype=float, copy=True)
+        q[..., 0] = self.c[0] + self.k * (q[..., 0] - self.c[0])
+        q[..., 1] = self.c[1] + self.k * (q[..., 1] - self.c[1])
+        return q
+
+    def r(self, radius: float) -> float:
+        return max(self.R0 + self.k * (radius - self.R0), 0.02 * self.R0)
+
+
+# --------------------------------------------------------------------------- mesh helpers
+
+
+def _axis_at(points: np.ndarray, z: np.ndarray) -> np.ndarray:
+    """Axis points at heights z (linear interpolation / extrapolation of the polyline)."""
+    zp = points[:, 2]
+    out = np.empty((len(z), 3))
+    for i in (0, 1):
+        if len(zp) == 2:
+            a, b = points[0, i], points[1, i]
+            out[:, i] = a + (b - a) * (z - zp[0]) / (zp[1] - zp[0])
+        else:
+            out[:, i] = np.interp(z, zp, points[:, i])
+    out[:, 2] = z
+    return out
+
+
+def _rings(axis: np.ndarray, radius: float, n_phi: int = N_PHI) -> np.ndarray:
+    """(nz, n_phi, 3) points of a right circular cylinder of ``radius`` about the polyline
+    ``axis`` (points at increasing z), cut by the planes z = axis z: each ring is the section
+    of the cylinder in the plane parallel to A at that height (an ellipse for a tilted axis)."""
+    T = np.gradient(axis, axis=0) if len(axis) > 2 else np.repeat((axis[1] - axis[0])[None], len(axis), 0)
+    T = T / np.linalg.norm(T, axis=1)[:, None]
+    ref = np.array([1.0, 0.0, 0.0])
+    e1 = ref[None] - (T @ ref)[:, None] * T
+    e1 /= np.linalg.norm(e1, axis=1)[:, None]
+    e2 = np.cross(T, e1)
+    phi = 2.0 * np.pi * np.arange(n_phi) / n_phi
+    c, s = np.cos(phi), np.sin(phi)
+    radial = radius * (c[None, :, None] * e1[:, None, :] + s[None, :, None] * e2[:, None, :])  # (nz, n, 3)
+    # slide each generator point along the axis back into the plane z = axis z
+    slide = -radial[..., 2] / T[:, None, 2]
+    return axis[:, None, :] + radial + slide[..., None] * T[:, None, :]
+
+
+def _quad_faces(nz: int, n: int, offset: int = 0) -> np.ndarray:
+    i, j = np.meshgrid(np.arange(nz - 1), np.arange(n), indexing="ij")
+    a = i * n + j
+    b = i * n + (j + 1) % n
+    c = (i + 1) * n + (j + 1) % n
+    d = (i + 1) * n + j
+    q = np.stack([np.full(a.shape, 4), a + offset, b + offset, c + offset, d + offset], -1)
+    return q.reshape(-1)
+
+
+def _tube(rings: np.ndarray, caps: bool = False) -> pv.PolyData:
+    nz, n, _ = rings.shape
+    pts = rings.reshape(-1, 3)
+    faces = [_quad_faces(nz, n)]
+    if caps:
+        faces.append(np.concatenate([[n], np.arange(n)[::-1]]))
+        faces.append(np.concatenate([[n], (nz - 1) * n + np.arange(n)]))
+    return pv.PolyData(pts, np.concatenate(faces))
+
+
+def _cage(centre: tuple[float, float], radius: float, z0: float, z1: float, n_rings: int = 3,
+          n_gen: int = 8, n_phi: int = N_PHI_CAGE, phase: float = 0.0) -> pv.PolyData:
+    """Wireframe of a perfect cylinder normal to A: rings and generator lines."""
+    phi = 2 * np.pi * np.arange(n_phi) / n_phi
+    pts, lines = [], []
+    for z in np.linspace(z0, z1, n_rings):
+        base = len(pts)
+        pts += [(centre[0] + radius * math.cos(p), centre[1] + radius * math.sin(p), z) for p in phi]
+        lines.append([n_phi + 1, *range(base, base + n_phi), base])
+    for g in range(n_gen):
+        p = phase + 2 * np.pi * g / n_gen
+        base = len(pts)
+        pts += [(centre[0] + radius * math.cos(p), centre[1] + radius * math.sin(p), z0),
+                (centre[0] + radius * math.cos(p), centre[1] + radius * math.sin(p), z1)]
+        lines.append([2, base, base + 1])
+    return pv.PolyData(np.array(pts), lines=np.concatenate(lines))
+
+
+def _polyline(points: np.ndarray) -> pv.PolyData:
+    points = np.asarray(points, dtype=float)
+    return pv.PolyData(points, lines=np.concatenate([[len(points)], np.arange(len(points))]))
+
+
+def _block_with_hole(hole_bottom: np.ndarray, hole_top: np.ndarray, centre, half: float, z0: float,
+                     z1: float) -> pv.PolyData:
+    """A square block (side 2*half) with a hole whose end sections are the given rings."""
+    n = hole_bottom.shape[0]
+    phi = 2 * np.pi * np.arange(n) / n
+    c, s = np.cos(phi), np.sin(phi)
+    sq = half / np.maximum(np.abs(c), np.abs(s))
+    outer = np.column_stack((centre[0] + sq * c, centre[1] + sq * s))
+    ob = np.column_stack((outer, np.full(n, z0)))
+    ot = np.column_stack((outer, np.full(n, z1)))
+    pts = np.vstack([hole_bottom, ob, hole_top, ot])
+    faces = [
+        _quad_faces(2, n, 0),  # bottom annulus: hole_bottom -> outer bottom
+        _quad_faces(2, n, 2 * n),  # top annulus
+    ]
+    # outer walls: outer bottom (n..2n) -> outer top (3n..4n)
+    j = np.arange(n)
+    walls = np.stack([np.full(n, 4), n + j, n + (j + 1) % n, 3 * n + (j + 1) % n, 3 * n + j], -1).reshape(-1)
+    faces.append(walls)
+    return pv.PolyData(pts, np.concatenate(faces))
+
+
+def _plate(centre, half: float, z0: float, z1: float) -> pv.PolyData:
+    return pv.Box(bounds=(centre[0] - half, centre[0] + half, centre[1] - half, centre[1] + half, z0, z1))
+
+
+def _dist_to_polyline(p: np.ndarray, axis: np.ndarray) -> np.ndarray:
+    """Distance of points p (m, 3) to the polyline ``axis``, its end segments extended."""
+    best = np.full(len(p), np.inf)
+    nseg = len(axis) - 1
+    for i in range(nseg):
+        a, b = axis[i], axis[i + 1]
+        ab = b - a
+        t = (p - a) @ ab / (ab @ ab)
+        lo = -np.inf if i == 0 else 0.0
+        hi = np.inf if i == nseg - 1 else 1.0
+        t = np.clip(t, lo, hi)
+        d = np.linalg.norm(p - (a + t[:, None] * ab), axis=1)
+        best = np.minimum(best, d)
+    return best
+
+
+# --------------------------------------------------------------------------- state and text
+
+
+def default_state(f: Feature, direction_deg: float = 0.0) -> FeatureState:
+    """The worst case: at MMC, using all the tolerance allowed, tilted in ``direction_deg``."""
+    return FeatureState(size=f.mmc, share=1.0, direction_deg=direction_deg)
+
+
+_CHAR = {
+    Characteristic.POSITION: "position",
+    Characteristic.PERPENDICULARITY: "perpendicularity",
+    Characteristic.PARALLELISM: "parallelism",
+    Characteristic.ANGULARITY: "angularity",
+    Characteristic.STRAIGHTNESS: "straightness",
+}
+
+
+def _frame_text(f: Feature, u: Units) -> str:
+    """Feature control frame in characters every renderer has (Latin-1)."""
+    tol = f.tolerance
+    if tol is None:
+        return "no geometric tolerance"
+    dia = "\u00d8" if tol.zone is Zone.DIAMETER else ""
+    mod = {Material.MMC: " (M)", Material.LMC: " (L)", Material.RFS: ""}[tol.material]
+    proj = f" (P){u.fmt(tol.projected)}" if tol.projected else ""
+    dat = (" to " + ", ".join(tol.datums)) if tol.datums else ""  # VTK fonts drop '|' 
+    ang = f" at {tol.angle:g} deg" if tol.characteristic is Characteristic.ANGULARITY and tol.angle is not None else ""
+    return f"{_CHAR[tol.characteristic]} {dia}{u.fmt(tol.value)}{mod}{proj}{dat}{ang}"
+
+
+def _size_name(f: Feature, size: float, std) -> str:
+    if abs(size - f.mmc) <= 1e-12:
+        return term("mmc", std)[0]
+    if abs(size - f.lmc) <= 1e-12:
+        return term("lmc", std)[0]
+    return "between"
+
+
+def _boundary_terms(res: SceneResult, f: Feature) -> tuple[tuple[str, float | None], tuple[str, float | None]]:
+    """((name, size) of the mating-side boundary, (name, size) of the opposite one)."""
+    fr = res.features[f.id]
+    std = res.scene.standard
+    tol = f.tolerance
+    hole = f.kind is Kind.HOLE
+    mm_side = fr.inner_boundary if hole else fr.outer_boundary
+    lm_side = fr.outer_boundary if hole else fr.inner_boundary
+    if tol is None:
+        return (("envelope at " + term("mmc", std)[0], mm_side.value), ("", None))
+    vc = fr.virtual_condition
+    rc = fr.resultant_condition
+    vc_name = vc.abbr(std)
+    if tol.material is Material.MMC:
+        return ((vc_name, vc.value), (rc.abbr(std), rc.value))
+    if tol.material is Material.LMC:  # the VC sits on the LMC side; the mate sees the RC side
+        return ((f"{mm_side.abbr(std)} = {rc.abbr(std)}", mm_side.value), (vc_name, vc.value))
+    return ((mm_side.abbr(std), mm_side.value), (lm_side.abbr(std), lm_side.value))
+
+
+def _feature_lines(res: SceneResult, f: Feature, st: FeatureState, role: str) -> list[str]:
+    u, std = res.scene.units, res.scene.standard
+    lines = [f"{role.upper()} '{f.id}'" + (f" ({f.name})" if f.name else ""),
+             f"  {_frame_text(f, u)}",
+             f"  limits {u.fmt(f.limits[0])} - {u.fmt(f.limits[1])} {u.value}"]
+    if f.tolerance is None:
+        lines.append(f"  produced {u.fmt(st.size)} ({_size_name(f, st.size, std)})")
+    else:
+        b = bonus(f, st.size)
+        ta = tolerance_allowed(f, st.size)
+        lines.append(f"  produced {u.fmt(st.size)} ({_size_name(f, st.size, std)}),  {term('bonus', std)[0]} {u.fmt(b)}")
+        lines.append(f"  tolerance allowed {u.fmt(f.tolerance.value)} + {u.fmt(b)} = {u.fmt(ta)}"
+                     + ("" if st.share >= 1.0 else f",  {st.share:.0%} used"))
+    fr = res.features[f.id]
+    (mname, mval), _ = _boundary_terms(res, f)
+    vc = fr.virtual_condition
+    if vc.value is not None and f.tolerance is not None and f.tolerance.material is Material.MMC:
+        lines.append("  " + vc.formula(u, std))
+    elif mval is not None:
+        d = fr.inner_boundary if f.kind is Kind.HOLE else fr.outer_boundary
+        lines.append("  " + d.formula(u, std))
+        if vc.value is not None:
+            lines.append("  (" + vc.formula(u, std) + ")")
+    return lines
+
+
+# --------------------------------------------------------------------------- styles
+
+
+def _surf(colour: str, opacity: float, **kw) -> dict:
+    d = dict(color=colour, opacity=opacity, smooth_shading=True, specular=0.2, ambient=0.25,
+             show_edges=False)
+    d.update(kw)
+    return d
+
+
+def _line(colour: str, width: float) -> dict:
+    return dict(color=colour, line_width=width, render_lines_as_tubes=False, lighting=False)
+
+
+# --------------------------------------------------------------------------- feature pieces
+
+
+@dataclass
+class _Built:
+    """Layers being assembled."""
+
+    layers: dict[str, list[Layer]] = field(default_factory=dict)
+    labels: list[Label] = field(default_factory=list)
+    legend: list[tuple[str, str, str]] = field(default_factory=list)  # (label, colour, layer)
+    notes: list[str] = field(default_factory=list)
+
+    def add(self, layer: str, name: str, mesh: pv.PolyData, style: dict) -> None:
+        self.layers.setdefault(layer, []).append(Layer(name, mesh, style))
+
+    def key(self, label: str, colour: str, layer: str) -> None:
+        if not any(lbl == label for lbl, _, _ in self.legend):
+            self.legend.append((label, colour, layer))
+
+
+def _feature_geometry(res: SceneResult, f: Feature, st: FeatureState, ex: _Ex, centre, role: str,
+                      b: _Built, primary: bool) -> dict[str, Any]:
+    """Zone, zone axis, actual axis, surface, boundaries of one feature. Returns what the mate
+    and clearance steps need (true and drawn axis, radii, z range)."""
+    u, std = res.scene.units, res.scene.standard
+    tol = f.tolerance
+    place: AxisPlacement = worst_case_axis(f, st, samples=2)
+    # shift to the drawing centre (a mating pin is drawn in its hole, on the hole's true position)
+    shift = np.array([centre[0] - f.at[0], centre[1] - f.at[1], 0.0])
+    pts_true = place.points + shift
+    z0, z1 = 0.0, f.length
+    zs = np.linspace(z0, z1, 33 if place.bowed else 2)
+    axis_true = _axis_at(pts_true, zs)
+    axis_draw = ex.pts(axis_true)
+    r_true = st.size / 2.0
+    r_draw = ex.r(r_true)
+    zc = (centre[0], centre[1])
+    is_hole = f.kind is Kind.HOLE
+    tag = "hole" if is_hole else "pin"
+
+    # tolerance zone at the produced size
+    if tol is not None and place.zone_size > 0:
+        zz0, zz1 = place.zone_z
+        if place.width_zone:
+            w = ex.k * place.zone_size / 2.0
+            half_y = max(r_draw, ex.R0) * 1.15
+            mesh = pv.Box(bounds=(zc[0] - w, zc[0] + w, zc[1] - half_y, zc[1] + half_y, zz0, zz1))
+            shape = f"slab {u.fmt(place.zone_size)} wide"
+        else:
+            ring = _rings(np.array([[zc[0], zc[1], zz0], [zc[0], zc[1], zz1]]), ex.k * place.zone_size / 2.0, N_PHI)
+            mesh = _tube(ring, caps=True)
+            shape = f"\u00d8{u.fmt(place.zone_size)}"
+        proj = bool(tol.projected)
+        colour = S.PROJECTED if proj else S.ZONE
+        b.add("zone", f"{tag} zone", mesh, _surf(colour, S.PROJECTED_OPACITY if proj else
+                                                  (S.ZONE_OPACITY if primary else S.ZONE_OPACITY * 0.6)))
+        where = "floating (orientation only), drawn at the basic location" if tol.characteristic in (
+            Characteristic.PERPENDICULARITY, Characteristic.PARALLELISM, Characteristic.ANGULARITY,
+            Characteristic.STRAIGHTNESS) else "at the true position"
+        if primary:
+            b.key("tolerance zone at the produced size" + (" (projected)" if proj else ""), colour, "zone")
+            b.notes.append(f"{tag} zone {shape}: {where}")
+        # zone axis, a little beyond both ends
+        ext = 0.08 * (zz1 - zz0 if not proj else f.length + tol.projected)
+        lo, hi = min(zz0, 0.0) - ext, max(zz1, f.length) + ext
+        b.add("zone_axis", f"{tag} zone axis", _polyline(np.array([[zc[0], zc[1], lo], [zc[0], zc[1], hi]])),
+              _line(S.ZONE_AXIS, 1.5))
+        if primary:
+            b.key("zone axis (true position / basic location)", S.ZONE_AXIS, "zone_axis")
+
+    # the actual axis: inside the feature, and (projected zone) extended through the zone
+    axis_colour = S.AXIS if is_hole else S.MATE_AXIS
+    full = ex.pts(_axis_at(pts_true, np.linspace(min(place.zone_z[0], 0.0), max(place.zone_z[1], f.length),
+                                                   33 if place.bowed else 2)))
+    b.add("axis", f"{tag} axis", _polyline(ex.pts(_axis_at(pts_true, np.linspace(z0, z1, len(zs))))),
+          _line(axis_colour, 4.0))
+    if tol is not None and tol.projected:
+        below = ex.pts(_axis_at(pts_true, np.array([-tol.projected, 0.0])))
+        b.add("projected", f"{tag} axis extension", _polyline(below), _line(axis_colour, 4.0))
+    ends = full[[0, -1]] if not place.bowed else ex.pts(_axis_at(pts_true, np.array([0.0, f.length / 2, f.length])))
+    b.add("axis", f"{tag} axis ends", pv.PolyData(ends), dict(color=axis_colour, point_size=11,
+                                                               render_points_as_spheres=True, lighting=False))
+    b.key(f"{tag} axis, worst case" + (" (bowed)" if place.bowed else " (tilted)"), axis_colour, "axis")
+
+    # the surface at the produced size around the actual axis
+    rings_draw = _rings(axis_draw, r_draw)
+    if primary:
+        b.add("surface", f"{tag} surface", _tube(rings_draw), _surf(S.SURFACE, S.SURFACE_OPACITY))
+        b.key(f"{tag} surface at produced size \u00d8{u.fmt(st.size)}", S.SURFACE, "surface")
+
+    # boundaries: perfect cylinders normal to A
+    (mname, mval), (oname, oval) = _boundary_terms(res, f)
+    phase = math.radians(st.direction_deg)  # generators in the plane of the tilt: the section's lines
+    if mval is not None:
+        cage = _cage(zc, ex.r(mval / 2.0), z0, z1, n_rings=3 if is_hole else 2, phase=phase,
+                     n_gen=8 if is_hole else 4)
+        b.add("vc", f"{tag} {mname}", cage, _line(S.VC, 2.5 if is_hole else 1.8))
+        b.key("VC: worst-case mating boundaries (perfect, normal to A)", S.VC, "vc")
+    if oval is not None:
+        cage = _cage(zc, ex.r(oval / 2.0), z0, z1, n_rings=2, phase=phase)
+        b.add("rc", f"{tag} {oname}", cage, _line(S.RC, 2.0))
+        b.key("opposite boundaries (RC)", S.RC, "rc")
+
+    return dict(place=place, pts_true=pts_true, axis_true=axis_true, axis_draw=axis_draw, r_true=r_true,
+                r_draw=r_draw, rings_draw=rings_draw, z=(z0, z1), mname=mname, mval=mval, oname=oname,
+                oval=oval, tag=tag)
+
+
+def _part(b: _Built, f: Feature, g: dict, ex: _Ex, centre, primary: bool) -> float:
+    """Block around a hole (its hole walls are the surface layer) or a plate under a pin."""
+    half = 1.3 * max(ex.R0, g["r_draw"]) + 0.45 * ex.R0
+    if f.kind is Kind.HOLE:
+        rings = g["rings_draw"]
+        mesh = _block_with_hole(rings[0], rings[-1], centre, half, g["z"][0], g["z"][1])
+        b.add("part", "hole part", mesh, _surf(S.PART, S.PART_OPACITY, smooth_shading=False))
+        b.key("part (translucent)", S.PART, "part")
+    else:
+        t = 0.22 * f.length
+        b.add("part", "pin part", _plate(centre, half, -t, 0.0), _surf(S.PART, S.PART_OPACITY * (1.0 if primary else 0.7),
+                                                                         smooth_shading=False))
+        b.key("part (translucent)", S.PART, "part")
+    return half
+
+
+def _symbol_side(direction_deg: float) -> np.ndarray:
+    """Where the datum feature symbol stands: along the tilt direction, a little towards the
+    cameras (so the section and iso views both show it beside the part)."""
+    phi = math.radians(direction_deg)
+    return -np.array([math.cos(phi), math.sin(phi), 0.0]) - 0.3 * np.array([-math.sin(phi), math.cos(phi), 0.0])
+
+
+def _datum(b: _Built, f: Feature, centre, half: float, length: float, view_side: np.ndarray) -> None:
+    """Datum plane A (z = 0 in the drawing frame) and the datum feature symbol."""
+    tol = f.tolerance
+    letter = tol.datums[0] if tol is not None and tol.datums else "A"
+    size = 1.55 * half
+    dz = -0.004 * length  # just under the part's face, so the two do not fight for the pixels
+    plane = pv.Plane(center=(centre[0], centre[1], dz), direction=(0, 0, 1), i_size=2 * size, j_size=2 * size,
+                     i_resolution=1, j_resolution=1)
+    b.add("datum", "datum plane", plane, _surf(S.DATUM, S.DATUM_OPACITY, smooth_shading=False, specular=0.0))
+    # datum feature symbol: a filled triangle on the plane, a leader, the letter in a frame
+    d = view_side / np.linalg.norm(view_side)
+    p = np.array([centre[0], centre[1], dz]) + d * (half + 0.45 * (size - half))
+    side = np.array([-d[1], d[0], 0.0])
+    tri_h = 0.10 * size
+    tri = np.array([p - side * tri_h * 0.6, p + side * tri_h * 0.6, p + np.array([0, 0, tri_h])])
+    b.add("datum", "datum triangle", pv.PolyData(tri, faces=[3, 0, 1, 2]),
+          dict(color=S.DATUM, lighting=False))
+    top = p + np.array([0, 0, 0.22 * max(length, size)])
+    b.add("datum", "datum leader", _polyline(np.array([p + np.array([0, 0, tri_h]), top])), _line(S.DATUM, 2.0))
+    b.labels.append(Label(tuple(top), f" {letter} ", S.TEXT, 22, layer="datum"))
+    b.key(f"datum plane {letter}", S.DATUM, "datum")
+
+
+# --------------------------------------------------------------------------- clearance
+
+
+def _mate_surface(b: _Built, hole_g: dict, pin: Feature, pin_g: dict, ex: _Ex, units: Units,
+                  hole_radius_true: float, label_colour_ok: str, tag_hole="hole", tag_pin="pin",
+                  mate_layer: str = "mate") -> tuple[float, float, dict]:
+    """The mating pin's surface coloured by the TRUE signed clearance to the hole surface.
+    Returns (smallest clearance scalar, clearance at the finely sampled tightest spot, scalar bar)."""
+    hz0, hz1 = hole_g["z"]
+    pz0, pz1 = pin_g["z"]
+    e0, e1 = max(hz0, pz0), min(hz1, pz1)
+    zs = np.linspace(e0, e1, N_Z_MATE)
+    axis_true = _axis_at(pin_g["pts_true"], zs)
+    rings_true = _rings(axis_true, pin_g["r_true"])
+    rings_draw = _rings(ex.pts(axis_true), pin_g["r_draw"])
+    hole_axis = hole_g["axis_true_line"]
+    gap = hole_radius_true - _dist_to_polyline(rings_true.reshape(-1, 3), hole_axis)
+    mesh = _tube(rings_draw)
+    mesh.point_data["gap"] = gap
+    mesh.point_data["clearance"] = 2.0 * gap
+    mesh.set_active_scalars("clearance")
+    cmin, cmax = float(mesh.point_data["clearance"].min()), float(mesh.point_data["clearance"].max())
+
+    # tightest spot: finely sampled round every ring of the engagement
+    fine_true = _rings(axis_true, pin_g["r_true"], N_FINE)
+    fgap = hole_radius_true - _dist_to_polyline(fine_true.reshape(-1, 3), hole_axis)
+    fgap = fgap.reshape(len(zs), N_FINE)
+    gmin = float(fgap.min())
+    fine_draw = _rings(ex.pts(axis_true), pin_g["r_draw"], N_FINE)
+    spots = []
+    decimals = units.decimals + 1
+    for zi in range(len(zs)):  # every ring where the minimum is reached (to display precision)
+        j = int(np.argmin(fgap[zi]))
+        if round(fgap[zi, j] - gmin, decimals) == 0 and (zi in (0, len(zs) - 1) or fgap[zi, j] < min(
+                fgap[max(zi - 1, 0)].min(), fgap[min(zi + 1, len(zs) - 1)].min()) + 1e-15):
+            spots.append((zi, j))
+    if not spots:
+        spots = [np.unravel_index(int(np.argmin(fgap)), fgap.shape)]
+    spots = spots[:2] if len(spots) <= 2 else [spots[0], spots[-1]]
+    c_tight = 2.0 * gmin
+    interferes = c_tight < -FIT_SLACK
+    lo = min(0.0, cmin)
+    hi = max(cmax, lo + abs(lo) * 0.25, 1e-12)
+    cmap = S.clearance_colormap(lo, hi)
+    title = f"clearance, {units.value}"
+    style = dict(scalars="clearance", cmap=cmap, clim=(lo, hi), smooth_shading=True, ambient=0.35,
+                 diffuse=0.75, specular=0.1, show_scalar_bar=False, interpolate_before_map=True)
+    b.add(mate_layer, f"{tag_pin} surface (clearance)", mesh, style)
+    for end in (0, -1):  # the pin's end faces (no clearance there: plain colour)
+        ring = rings_draw[end]
+        b.add(mate_layer, f"{tag_pin} end", pv.PolyData(ring, faces=np.concatenate([[len(ring)], np.arange(len(ring))])),
+              _surf(S.MATE, 1.0, smooth_shading=False))
+    b.key(f"{tag_pin} surface: clearance to the {tag_hole} (true; 2 x local gap)", S.CLEARANCE_COLORS[1], mate_layer)
+    if interferes:
+        b.key(f"interference: {tag_pin} and {tag_hole} overlap", S.INTERFERENCE, mate_layer)
+
+    # markers: the tightest spots, and the gap drawn as a short segment across to the hole surface
+    hole_r_draw = hole_g["r_draw_surface"]
+    colour = S.INTERFERENCE if interferes else S.TIGHT
+    for zi, j in spots:
+        p = fine_draw[zi, j]
+        b.add("clearance", "tightest spot", pv.PolyData(p[None]),
+              dict(color=colour, point_size=16, render_points_as_spheres=True, lighting=False))
+        # outward direction on A at that spot, label a little outside the hole surface
+        centre_d = ex.pts(_axis_at(hole_g["axis_true_line"], np.array([p[2]])))[0]
+        out = p - centre_d
+        out[2] = 0.0
+        nrm = np.linalg.norm(out)
+        out = out / nrm if nrm > 0 else np.array([1.0, 0, 0])
+        q = centre_d + out * hole_r_draw
+        b.add("clearance", "gap at tightest spot", _polyline(np.array([p, q])), _line(colour, 3.0))
+    txt = ("interference " if interferes else "tightest ") + units.fmt(c_tight, signed=True) + f" {units.value}"
+    txt += f" ({abs(gmin):.{units.decimals + 1}f} a side)"
+    cx = ex.c
+    for zi, j in spots:
+        p = fine_draw[zi, j]
+        right = (p[0] - cx[0]) * math.cos(math.radians(0)) > 0  # spot on the +x side: text runs left
+        b.labels.append(Label(tuple(p), txt, S.INTERFERENCE if interferes else S.TEXT, 16, layer="clearance",
+                              justify="right" if right else "left"))
+    bar = dict(title=title, clim=(lo, hi))
+    return cmin, c_tight, bar
+
+
+# --------------------------------------------------------------------------- cameras
+
+
+def _cameras(bounds, direction_deg: float, centre) -> tuple[dict, dict, tuple]:
+    """Cameras round the drawn geometry ``bounds`` (datum plane excluded): iso (oblique, from
+    the side the section cut opens towards), top (normal to A, tilt direction to the right),
+    section (normal to the plane of the tilt, A at the bottom)."""
+    x0, x1, y0, y1, z0, z1 = bounds
+    c = np.array([(x0 + x1) / 2, (y0 + y1) / 2, (z0 + z1) / 2])
+    R = 0.5 * math.sqrt((x1 - x0) ** 2 + (y1 - y0) ** 2 + (z1 - z0) ** 2)
+    phi = math.radians(direction_deg)
+    u = np.array([math.cos(phi), math.sin(phi), 0.0])
+    v = np.array([-u[1], u[0], 0.0])
+    z = np.array([0.0, 0.0, 1.0])
+    dist = R / math.sin(math.radians(15.0)) * 1.55
+    iso = 0.45 * u - 1.0 * v + 0.55 * z
+    iso /= np.linalg.norm(iso)
+
+    def t(a):
+        return tuple(float(x) for x in a)
+
+    cams = {
+        "iso": (t(c + dist * iso), t(c), t(z)),
+        "top": (t(c + dist * z), t(c), t(v)),
+        "section": (t(c - dist * v), t(c), t(z)),
+    }
+    wide = max(abs(np.dot([x1 - x0, y1 - y0, 0], u)), 1e-9)
+    # the picture keeps the lower-left ~60 % of the frame (readouts above, legend to the right)
+    scale = {"top": max(x1 - x0, y1 - y0) / 2 / 0.58,
+             "section": max((z1 - z0) / 2 / 0.60, wide / 1.6)}
+    return cams, scale, (t((centre[0], centre[1], 0.0)), t(v))
+
+
+# --------------------------------------------------------------------------- builders
+
+
+def _finish(res: SceneResult, b: _Built, ex: _Ex, title: str, readouts: list[str], verdict: str,
+            verdict_colour: str, direction_deg: float, kind: str, ids: tuple[str, ...], states: dict,
+            clearance=None, tightest=None, bar=None) -> Scene3D:
+    layers = {name: tuple(b.layers[name]) for name in LAYERS if b.layers.get(name)}
+    meshes = [it.mesh for name, items in layers.items() if name != "datum" for it in items]
+    bounds = np.array([m.bounds for m in meshes])
+    box = (bounds[:, 0].min(), bounds[:, 1].max(), bounds[:, 2].min(), bounds[:, 3].max(),
+           bounds[:, 4].min(), bounds[:, 5].max())
+    cams, scale, section = _cameras(box, direction_deg, ex.c)
+    u = res.scene.units
+    if ex.k == 1.0:
+        caption = "TRUE SCALE: radial deviations x 1 (no exaggeration)"
+    else:
+        caption = (f"RADIAL DEVIATIONS x {ex.k:g}\nzones, gaps, tilts, size differences drawn x {ex.k:g} "
+                   f"about \u00d8{u.fmt(2 * ex.R0)}; lengths true")
+    return Scene3D(
+        title=title,
+        layers=layers,
+        labels=tuple(b.labels),
+        readouts=tuple(readouts),
+        legend=tuple((lbl, col) for lbl, col, _ in b.legend),
+        legend_layers=tuple(layer for _, _, layer in b.legend),
+        cameras=cams,
+        exaggeration=ex.k,
+        units=u,
+        caption=caption,
+        verdict=verdict,
+        verdict_colour=verdict_colour,
+        clearance=clearance,
+        tightest=tightest,
+        scalar_bar=bar,
+        parallel_scale=scale,
+        section=section,
+        kind=kind,
+        feature_ids=ids,
+        states=dict(states),
+        notes=tuple(b.notes),
+    )
+
+
+def build_mate_scene(res: SceneResult, mate_index: int, states: dict[str, FeatureState] | None = None,
+                     exaggeration: float | None = None) -> Scene3D:
+    """The hole of mate ``mate_index`` with its part, zone, actual axis, surface and boundaries,
+    and the mating pin at its own worst case placed in it, coloured by the true clearance.
+
+    ``states`` maps feature id -> FeatureState; missing features take the worst case: at MMC,
+    all the tolerance allowed used, the hole tilted at 0 deg and the pin at 180 deg (adverse).
+    """
+    sc = res.scene
+    m = sc.mates[mate_index]
+    hole, pin = sc.feature(m.hole), sc.feature(m.pin)
+    states = dict(states or {})
+    hs = states.get(hole.id) or default_state(hole, 0.0)
+    ps = states.get(pin.id) or default_state(pin, 180.0)
+    worst = hs == default_state(hole, 0.0) and ps == default_state(pin, 180.0)
+    k = float(exaggeration) if exaggeration is not None else auto_exaggeration(res, mate_index=mate_index)
+    if not (k > 0 and math.isfinite(k)):
+        raise ValueError(f"exaggeration must be a positive number, got {exaggeration!r}")
+    centre = hole.at
+    ex = _Ex(k, centre, hole.mmc / 2.0)
+    b = _Built()
+    u, std = sc.units, sc.standard
+
+    hg = _feature_geometry(res, hole, hs, ex, centre, "hole", b, primary=True)
+    pg = _feature_geometry(res, pin, ps, ex, centre, "pin", b, primary=False)
+    hg["axis_true_line"] = hg["axis_true"]
+    hg["r_draw_surface"] = hg["r_draw"]
+    half = _part(b, hole, hg, ex, centre, True)
+    _part(b, pin, pg, ex, centre, False)
+    _datum(b, hole, centre, half, max(hole.length, pin.length), _symbol_side(hs.direction_deg))
+    if hole.tolerance is not None and hole.tolerance.projected:
+        _projected_note(b, res, hole, hs, ex, centre)
+
+    cmin, c_tight, bar = _mate_surface(b, hg, pin, pg, ex, u, hs.size / 2.0, S.TEXT)
+    c_formula = clearance_at(hole, pin, hs, ps)
+    assembles = c_formula >= -FIT_SLACK
+    verdict = mate_verdict(c_formula, assembles, u)
+    if not worst:
+        verdict = "what-if: " + verdict.replace(" in the worst case", "")
+    verdict_colour = S.INTERFERENCE if not assembles else S.OK
+
+    # boundary labels at mid-height on the far side of the tilt plane
+    _boundary_labels(b, res, hole, hg, ex, centre, hs.direction_deg, 0.62)
+    _boundary_labels(b, res, pin, pg, ex, centre, hs.direction_deg, 0.38)
+
+    lines = _feature_lines(res, hole, hs, "hole")
+    lines += _feature_lines(res, pin, ps, "pin")
+    mr = res.mates[mate_index]
+    if worst:
+        lines.append(mate_formula(mr, u, std) + f" {u.value}")
+    else:
+        lines.append(f"clearance = opening(hole) - envelope(pin) = {u.fmt(effective_size(hole, hs))} - "
+                     f"{u.fmt(effective_size(pin, ps))} = {u.fmt(c_formula, signed=True)} {u.value}")
+    if abs(c_tight - c_formula) >= 0.5 * 10 ** -u.decimals:
+        lines.append(f"tightest on the picture (tilts as set): {u.fmt(c_tight, signed=True)} {u.value}")
+    lines.append(f"(from sizes alone: {u.fmt(mr.clearance_min_size, signed=True)} {u.value}, hole MMC - pin MMC)")
+    b.notes.append("pin drawn on the hole's true position; both seat on datum A")
+    return _finish(res, b, ex, sc.title, lines, verdict, verdict_colour, hs.direction_deg, "mate",
+                   (hole.id, pin.id), {hole.id: hs, pin.id: ps}, clearance=c_formula,
+                   tightest=cmin, bar=bar)
+
+
+def _boundary_labels(b: _Built, res: SceneResult, f: Feature, g: dict, ex: _Ex, centre, direction_deg: float,
+                     frac: float) -> None:
+    u = res.scene.units
+    phi = math.radians(direction_deg)
+    v = np.array([-math.sin(phi), math.cos(phi), 0.0])
+    zlen = g["z"][1]
+    if g["mval"] is not None:
+        r = ex.r(g["mval"] / 2.0)
+        p = np.array([centre[0], centre[1], zlen * frac]) + v * r
+        b.labels.append(Label(tuple(p), f"{g['tag']} {g['mname']} \u00d8{u.fmt(g['mval'])}", S.VC, 14, layer="vc"))
+    if g["oval"] is not None:
+        r = ex.r(g["oval"] / 2.0)
+        p = np.array([centre[0], centre[1], zlen * 0.85]) + v * r
+        b.labels.append(Label(tuple(p), f"{g['tag']} {g['oname']} \u00d8{u.fmt(g['oval'])}", S.RC, 14, layer="rc"))
+
+
+def _fastener_for(res: SceneResult, f: Feature):
+    """The fixed-fastener pattern that goes with a projected zone: the one whose projection P
+    equals the zone height, else the only fixed one; None if there is none."""
+    tol = f.tolerance
+    fixed = [fr for fr in res.fasteners.values() if fr.fastener.kind == "fixed"]
+    same = [fr for fr in fixed if fr.fastener.projection is not None and tol is not None
+            and abs(fr.fastener.projection - (tol.projected or 0)) <= 1e-9]
+    if same:
+        return same[0]
+    return fixed[0] if len(fixed) == 1 else None
+
+
+def _projected_note(b: _Built, res: SceneResult, f: Feature, st: FeatureState, ex: _Ex, centre) -> dict | None:
+    """Projected zone: the mating part on the far side of A, with its clearance hole, and the
+    fastener along the extended axis, coloured by its clearance to that hole."""
+    u, std = res.scene.units, res.scene.standard
+    tol = f.tolerance
+    P = tol.projected
+    place = worst_case_axis(f, st, samples=2)
+    shift = np.array([centre[0] - f.at[0], centre[1] - f.at[1], 0.0])
+    pts_true = place.points + shift
+    # what the axis would do if the same zone applied over the thread length only
+    L = f.length
+    off = place.offset
+    uvec = np.array([*place.direction, 0.0])
+    ghost = np.array([np.array([*centre, 0.0]) + uvec * (-off / 2 + off * z / L) + np.array([0, 0, z])
+                      for z in (-P, L)])
+    b.add("projected", "axis if the zone were not projected", _polyline(ex.pts(ghost)),
+          _line(S.PART, 2.0) | dict(color="#8E959C"))
+    miss = off / 2 + off * P / L - off / 2
+    b.notes.append(f"same zone over the thread only: the extended axis would leave it by "
+                   f"{u.fmt(miss)} at the mating part's far face")
+    b.labels.append(Label(tuple(ex.pts(ghost[0:1])[0]), "axis if not projected", "#5C636A", 13, layer="projected"))
+    fr = _fastener_for(res, f)
+    if fr is None:
+        b.notes.append("no fixed fastener in the scene: the mating part is not drawn")
+        b.key("projected zone region", S.PROJECTED, "projected")
+        return None
+    fa = fr.fastener
+    T = fr.position_tolerance.value
+    vc_hole = fa.hole - T  # the mating clearance hole's virtual condition H - T
+    rc_true = vc_hole / 2.0
+    half = 1.3 * max(ex.R0, ex.r(rc_true)) + 0.45 * ex.R0
+    rings = _rings(np.array([[centre[0], centre[1], -P], [centre[0], centre[1], 0.0]]), ex.r(rc_true))
+    b.add("projected", "mating part", _block_with_hole(rings[0], rings[-1], centre, half, -P, 0.0),
+          _surf(S.PROJECTED, 0.10, smooth_shading=False))
+    b.add("projected", "mating clearance hole VC", _tube(rings), _surf(S.PROJECTED, 0.22))
+    b.key("mating part: clearance hole at its VC (H - T)", S.PROJECTED, "projected")
+    # fastener of size F about the extended axis, through the mating part
+    fast = Feature(f"{fa.id}", Kind.PIN, (fa.fastener, fa.fastener), P)
+    hole_g = dict(z=(-P, 0.0), axis_true_line=np.array([[centre[0], centre[1], -P], [centre[0], centre[1], 0.0]]),
+                  r_draw_surface=ex.r(rc_true), r_draw=ex.r(rc_true))
+    zs = np.array([-P, 0.0])
+    pin_g = dict(z=(-P, 0.0), pts_true=_axis_at(pts_true, zs), r_true=fa.fastener / 2.0,
+                 r_draw=ex.r(fa.fastener / 2.0))
+    cmin, c_tight, bar = _mate_surface(b, hole_g, fast, pin_g, ex, u, rc_true, S.TEXT,
+                                       tag_hole="mating hole", tag_pin="fastener", mate_layer="projected")
+    c = vc_hole - (fa.fastener + place.offset)
+    b.notes.append(f"fastener F {u.fmt(fa.fastener)} in the projected zone: envelope F + t = "
+                   f"{u.fmt(fa.fastener + place.offset)}; mating hole VC = H - T = {u.fmt(fa.hole)} - {u.fmt(T)} = "
+                   f"{u.fmt(vc_hole)}; clearance {u.fmt(c, signed=True)} {u.value}")
+    return dict(clearance=c, tight=c_tight, bar=bar, fastener=fa.id)
+
+
+def build_feature_scene(res: SceneResult, feature_id: str, state: FeatureState | None = None,
+                        exaggeration: float | None = None) -> Scene3D:
+    """One feature alone: its part, datum A, zone, actual axis, surface and boundaries; with a
+    projected zone also the mating part and fastener on the far side of A (if the scene has a
+    fixed-fastener pattern to take them from)."""
+    sc = res.scene
+    f = sc.feature(feature_id)
+    st = state or default_state(f, 0.0)
+    worst = st == default_state(f, 0.0)
+    k = float(exaggeration) if exaggeration is not None else auto_exaggeration(res, feature_id=feature_id)
+    if not (k > 0 and math.isfinite(k)):
+        raise ValueError(f"exaggeration must be a positive number, got {exaggeration!r}")
+    centre = f.at
+    ex = _Ex(k, centre, f.mmc / 2.0)
+    b = _Built()
+    u = sc.units
+    g = _feature_geometry(res, f, st, ex, centre, f.kind.value, b, primary=True)
+    half = _part(b, f, g, ex, centre, True)
+    _datum(b, f, centre, half, f.length, _symbol_side(st.direction_deg))
+    _boundary_labels(b, res, f, g, ex, centre, st.direction_deg, 0.5)
+    lines = _feature_lines(res, f, st, f.kind.value)
+    eff = effective_size(f, st)
+    what = "clear opening" if f.kind is Kind.HOLE else "envelope"
+    lines.append(f"{what} normal to A at this state: {u.fmt(eff)} {u.value}")
+    verdict, colour, clearance, bar, tight = "", S.TEXT, None, None, None
+    if f.tolerance is not None and f.tolerance.projected:
+        out = _projected_note(b, res, f, st, ex, centre)
+        if out is not None:
+            clearance, tight, bar = out["clearance"], out["tight"], out["bar"]
+            ok = clearance >= -FIT_SLACK
+            verdict = (("fastener CLEARS the mating hole by " if ok else "fastener JAMS in the mating hole by ")
+                       + f"{u.fmt(abs(clearance))} {u.value}" + ("" if worst else " (what-if)"))
+            colour = S.OK if ok else S.INTERFERENCE
+    if not verdict:
+        (mname, mval), _ = _boundary_terms(res, f)
+        if mval is not None:
+            verdict = f"worst-case mating boundary {mname} \u00d8{u.fmt(mval)} {u.value}"
+    return _finish(res, b, ex, sc.title, lines, verdict, colour, st.direction_deg, "feature", (f.id,),
+                   {f.id: st}, clearance=clearance, tightest=tight, bar=bar)
+
+
+# --------------------------------------------------------------------------- plotting
+
+_UNCUT = frozenset({"datum", "axis", "zone_axis", "clearance"})  # lines/points in the cut plane
+_OUTLINED = {"part": ("#6B737B", 2.0), "surface": (S.SURFACE, 5.0), "zone": (S.ZONE, 2.5), "mate": (None, 6.0),
+             "projected": (S.PROJECTED, 3.0)}
+
+
+def section_cut(scene: Scene3D) -> Scene3D:
+    """The scene cut by the plane of the tilt (through the zone axis, normal to A), keeping the
+    half away from the iso and section cameras, with the cut outlines drawn as thick lines:
+    the hole's walls, the pin's walls (coloured by clearance), the zone's sides and the part."""
+    origin, normal = scene.section
+    n = np.asarray(normal, dtype=float)
+    o = np.asarray(origin, dtype=float) - 1e-7 * max(1.0, scene.exaggeration) * n  # keep lines in the plane
+    layers: dict[str, tuple[Layer, ...]] = {}
+    for name, items in scene.layers.items():
+        if name in _UNCUT:
+            layers[name] = items
+            continue
+        out: list[Layer] = []
+        for it in items:
+            mesh = it.mesh
+            cut = mesh.clip(normal=tuple(-n), origin=tuple(o), invert=True)
+            if not isinstance(cut, pv.PolyData):
+                cut = cut.extract_surface()
+            if cut.n_points:
+                out.append(replace(it, mesh=cut))
+            if name in _OUTLINED and mesh.n_cells and mesh.n_lines == 0 and it.style.get("opacity", 1.0) > 0.05:
+                line = mesh.slice(normal=tuple(n), origin=tuple(np.asarray(origin, dtype=float)))
+                if line.n_points:
+                    colour, width = _OUTLINED[name]
+                    st = {k: v for k, v in it.style.items() if k in ("scalars", "cmap", "clim", "show_scalar_bar",
+                                                                     "interpolate_before_map")}
+                    if "scalars" not in st:
+                        st["color"] = colour or it.style.get("color", S.TEXT)
+                    st.update(line_width=width, lighting=False)
+                    out.append(Layer(it.name + " (cut)", line, st))
+        if out:
+            layers[name] = tuple(out)
+    return replace(scene, layers=layers)
+
+
+def view_scene(scene: Scene3D, view: str) -> Scene3D:
+    """The scene as ``render_image`` draws it from ``view``: cut open at the plane of the tilt
+    for "iso" and "section" (so the axes, the zone and the tight spots inside are visible),
+    whole for "top" (the through-view normal to A)."""
+    if view not in VIEWS:
+        raise ValueError(f"unknown view {view!r}; choose one of {', '.join(VIEWS)}")
+    return scene if view == "top" else section_cut(scene)
+
+
+def _visible(scene: Scene3D, visible: set[str] | None) -> set[str]:
+    return set(LAYERS) - HIDDEN_BY_DEFAULT if visible is None else set(visible)
+
+
+def _icon(colour: str):
+    """A small solid image: the legend swatch (so the legend text itself stays TEXT-coloured)."""
+    import vtk
+    from vtk.util.numpy_support import numpy_to_vtk
+
+    img = vtk.vtkImageData()
+    img.SetDimensions(12, 12, 1)
+    arr = np.tile(np.array(S.rgb255(colour), dtype=np.uint8), (144, 1))
+    img.GetPointData().SetScalars(numpy_to_vtk(arr, deep=True, array_type=vtk.VTK_UNSIGNED_CHAR))
+    return img
+
+
+def _text_box(text: str, prop) -> tuple[int, int]:
+    """(width, height) in pixels of ``text`` drawn with the text property ``prop``."""
+    import vtk
+
+    bb = [0, 0, 0, 0]
+    vtk.vtkTextRenderer().GetBoundingBox(prop, text, bb, 72)
+    return int(bb[1] - bb[0] + 1), int(bb[3] - bb[2] + 1)
+
+
+def _text_width(text: str, prop) -> int:
+    return _text_box(text, prop)[0]
+
+
+def _font_px(plotter) -> int:
+    w, h = plotter.window_size
+    return max(7, int(round(min(w, 1.333 * h) / 165)))
+
+
+def add_to_plotter(plotter, scene: Scene3D, visible: set[str] | None = None) -> dict[str, list]:
+    """Add the scene's layers to ``plotter`` (any ``pyvista.Plotter``, e.g. a pyvistaqt
+    ``QtInteractor``); returns layer name -> actors. ``visible=None`` shows every layer but
+    those in HIDDEN_BY_DEFAULT ("rc"). Overlays: "readouts" (title, numbers, exaggeration
+    caption, verdict), "legend" (legend box, clearance scalar bar)."""
+    show = _visible(scene, visible)
+    actors: dict[str, list] = {name: [] for name in LAYERS}
+    plotter.set_background(S.BACKGROUND)
+    mate_actor = None
+    for name in LAYERS:
+        if name not in show:
+            continue
+        for it in scene.layers.get(name, ()):
+            style = dict(it.style)
+            a = plotter.add_mesh(it.mesh, reset_camera=False, render=False, **style)
+            actors[name].append(a)
+            if "scalars" in style and mate_actor is None:
+                mate_actor = a
+    fs = _font_px(plotter)
+    if "labels" in show:
+        groups: dict[tuple, list[Label]] = {}
+        for lb in scene.labels:
+            if lb.layer in show or lb.layer == "labels":
+                groups.setdefault((lb.colour, lb.size, lb.layer == "datum", lb.justify), []).append(lb)
+        for (colour, size, framed, justify), lbs in groups.items():
+            a = plotter.add_point_labels(
+                np.array([lb.point for lb in lbs]), [lb.text for lb in lbs],
+                font_size=max(8, int(round(size * (fs + 3) / 14))), text_color=colour, font_family=S.FONT_FAMILY,
+                bold=True, shape="rect", shape_color=S.BACKGROUND, shape_opacity=1.0 if framed else 0.8,
+                show_points=False, always_visible=True, margin=5 if framed else 2, reset_camera=False,
+                render=False, justification_horizontal=justify)
+            actors["labels"].append(a)
+    w, h = plotter.window_size
+    if "readouts" in show:
+        t = plotter.add_text(scene.title, position=(int(0.012 * w), h - int(0.012 * h)), font_size=fs + 4,
+                             color=S.TEXT, font=S.FONT_FAMILY, render=False)
+        t.GetTextProperty().SetVerticalJustificationToTop()
+        t.GetTextProperty().BoldOn()
+        actors["readouts"].append(t)
+        r = plotter.add_text("\n".join(scene.readouts), position=(int(0.012 * w), h - int(0.012 * h) - 3.2 * fs),
+                             font_size=fs, color=S.TEXT, font=S.MONO_FAMILY, render=False)
+        r.GetTextProperty().SetVerticalJustificationToTop()
+        r.GetTextProperty().SetLineSpacing(1.05)
+        actors["readouts"].append(r)
+        head, _, rest = scene.caption.partition("\n")
+        for i, (txt, size, bold) in enumerate(((head, fs + 6, True), (rest, fs, False))):
+            if not txt:
+                continue
+            c = plotter.add_text(txt, position=(w - int(0.012 * w), h - int(0.012 * h) - i * 2.2 * (fs + 4)),
+                                 font_size=size, color=S.TEXT, font=S.FONT_FAMILY, render=False)
+            c.GetTextProperty().SetVerticalJustificationToTop()
+            c.GetTextProperty().SetJustificationToRight()
+            c.GetTextProperty().SetBold(bold)
+            actors["readouts"].append(c)
+        if scene.verdict:  # under the readouts
+            top = h - int(0.012 * h) - 3.2 * fs - _text_box("\n".join(scene.readouts), r.GetTextProperty())[1]
+            v = plotter.add_text(scene.verdict, position=(int(0.012 * w), int(top - 0.6 * fs)), font_size=fs + 3,
+                                 color=scene.verdict_colour, font=S.FONT_FAMILY, render=False)
+            v.GetTextProperty().BoldOn()
+            v.GetTextProperty().SetVerticalJustificationToTop()
+            actors["readouts"].append(v)
+    if "legend" in show:
+        rows = [(lbl, col) for (lbl, col), layer in zip(scene.legend, scene.legend_layers) if layer in show]
+        texts = []
+        for lbl, col in rows:
+            tx = plotter.add_text(lbl, position=(0, 0), font_size=fs, color=S.TEXT, font=S.FONT_FAMILY, render=False)
+            tx.GetTextProperty().SetBackgroundColor(*S.rgb(S.BACKGROUND))
+            tx.GetTextProperty().SetBackgroundOpacity(0.8)
+            texts.append(tx)
+        widths = [_text_width(lbl, tx.GetTextProperty()) for (lbl, _), tx in zip(rows, texts)]
+        row_px = 1.25 * max((tx.GetTextProperty().GetFontSize() for tx in texts), default=fs)
+        x_txt = w - int(0.012 * w) - max(widths, default=0)
+        for i, ((lbl, col), tx) in enumerate(zip(reversed(rows), reversed(texts))):
+            y = int(0.015 * h + i * row_px)
+            tx.SetPosition(x_txt, y)
+            sw = plotter.add_text("  ", position=(0, y), font_size=fs, font=S.MONO_FAMILY, render=False)
+            tp = sw.GetTextProperty()
+            sw.SetPosition(x_txt - _text_width("  ", tp) - int(0.6 * fs), y)
+            tp.SetBackgroundColor(*S.rgb(col))
+            tp.SetBackgroundOpacity(1.0)
+            tp.SetFrame(True)
+            tp.SetFrameColor(*S.rgb(S.TEXT))
+            actors["legend"] += [sw, tx]
+        if mate_actor is not None and scene.scalar_bar is not None:
+            u = scene.units
+            actors["legend"].append(plotter.add_scalar_bar(
+                title=scene.scalar_bar["title"], mapper=mate_actor.mapper, n_labels=5, color=S.TEXT,
+                font_family=S.FONT_FAMILY, vertical=True, position_x=0.90, position_y=0.46, width=0.06,
+                height=0.34, fmt=f"%.{u.decimals}f", title_font_size=fs + 3, label_font_size=fs + 1,
+                unconstrained_font_size=True, render=False))
+    return actors
+
+
+def apply_view(plotter, scene: Scene3D, view: str) -> None:
+    """Point the plotter's camera at the scene from ``view`` (parallel projection for "top" and
+    "section"), leaving the corners to the readouts and the legend."""
+    if view not in scene.cameras:
+        raise ValueError(f"unknown view {view!r}; choose one of {', '.join(VIEWS)}")
+    plotter.camera_position = scene.cameras[view]
+    cam = plotter.camera
+    if view in scene.parallel_scale:
+        cam.parallel_projection = True
+        cam.parallel_scale = scene.parallel_scale[view]
+    else:
+        cam.parallel_projection = False
+        cam.view_angle = 30.0
+    plotter.renderer.GetActiveCamera().SetWindowCenter(*scene.window_centre)
+    plotter.reset_camera_clipping_range()
+
+
+def render_image(scene: Scene3D, path=None, view: str = "iso", size=(1600, 1200),
+                 visible: set[str] | None = None) -> np.ndarray:
+    """Render the scene off-screen from camera ``view`` (drawn as :func:`view_scene` gives it),
+    write a PNG to ``path`` if given, and return the image as an (h, w, 3) uint8 array."""
+    sc = view_scene(scene, view)
+    pl = pv.Plotter(off_screen=True, window_size=(int(size[0]), int(size[1])))
+    try:
+        add_to_plotter(pl, sc, visible)
+        apply_view(pl, sc, view)
+        img = pl.screenshot(str(path) if path is not None else None, return_img=True)
+    finally:
+        pl.close()
+    return np.asarray(img)[..., :3]
