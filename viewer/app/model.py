@@ -170,7 +170,7 @@ class SceneModel(QObject):
     def __init__(self, scene: Scene | None = None, path: str | None = None, parent=None):
         super().__init__(parent)
         self.undo_stack = QUndoStack(self)
-        self.undo_stack.cleanChanged.connect(lambda clean: self.dirtyChanged.emit(not clean))
+        self.undo_stack.cleanChanged.connect(self._clean_changed)
         self.scene: Scene = scene or new_scene()
         self.result: SceneResult = analyse_scene(self.scene)
         self.path: str | None = path
@@ -178,6 +178,9 @@ class SceneModel(QObject):
         self.focus: tuple[str, object] = ("feature", self.scene.features[0].id)
         self._reset_states()
         self._default_focus()
+
+    def _clean_changed(self, clean: bool) -> None:
+        self.dirtyChanged.emit(not clean)
 
     # ------------------------------------------------------------ reading
 
@@ -246,9 +249,19 @@ class SceneModel(QObject):
             lo, hi = f.limits
             if st is not None and lo <= st.size <= hi:
                 states[f.id] = st
+            elif st is not None:
+                states[f.id] = B.FeatureState(f.mmc, st.share, st.direction_deg)
             else:
-                states[f.id] = B.FeatureState(f.mmc, 1.0, st.direction_deg if st else 0.0)
+                states[f.id] = self._worst_case(f)
         self.states = states
+
+    def _worst_case(self, f: Feature) -> B.FeatureState:
+        """MMC, all of the tolerance used; a pin in a mate tilts opposite to the hole (the same
+        default the 2D views and the report use)."""
+        from viewer.figures import worst_case_state
+
+        in_mate = any(f.id in (m.hole, m.pin) for m in self.scene.mates)
+        return worst_case_state(f, in_mate)
 
     def _default_focus(self) -> None:
         self.focus = ("mate", 0) if self.scene.mates else ("feature", self.scene.features[0].id)

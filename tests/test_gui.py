@@ -1,0 +1,353 @@
+"""The desktop window (pytest-qt, run under ``xvfb-run -a``).
+
+Check values are computed inside each test from geom (geom.boundaries.bonus /
+tolerance_allowed / virtual_condition, geom.scenefile.parse) or read from the scene file,
+so the window is held to the same numbers and messages as the command line.
+"""
+
+from __future__ import annotations
+
+import os
+import subprocess
+import sys
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+pytestmark = pytest.mark.gui
+
+ROOT = Path(__file__).resolve().parent.parent
+SCENES = sorted((ROOT / "scenes").glob("*.toml"))
+GEARBOX = ROOT / "scenes" / "gearbox_endcap_dowel.toml"
+MATEZONE = [sys.executable, "-m", "matezone.cli"]
+
+if not os.environ.get("DISPLAY"):
+    pytest.skip("GUI tests need an X display: run them under xvfb-run -a", allow_module_level=True)
+
+
+@pytest.fixture(autouse=True)
+def _private_settings(tmp_path, qapp):
+    from PyQt5.QtCore import QSettings
+
+    QSettings.setDefaultFormat(QSettings.IniFormat)
+    QSettings.setPath(QSettings.IniFormat, QSettings.UserScope, str(tmp_path / "settings"))
+
+
+def _open(qtbot, path=GEARBOX):
+    from geom.scenefile import load
+    from viewer.app.main import make_window
+
+    win = make_window(load(path), str(path))
+    qtbot.addWidget(win)
+    win.confirm = lambda: "discard"
+    win.show()
+    with qtbot.waitSignal(win.view3d.rendered, timeout=60_000):
+        win.view3d.schedule()
+    return win
+
+
+def _close(win):
+    win.confirm = lambda: "discard"
+    win.close()
+
+
+# ---------------------------------------------------------------- opening
+
+
+@pytest.mark.parametrize("path", SCENES, ids=[p.stem for p in SCENES])
+def test_every_demo_scene_opens_with_3d_actors_and_a_verdict(qtbot, path):
+    from geom.analysis import analyse_scene
+    from geom.scenefile import load
+
+    win = _open(qtbot, path)
+    res = analyse_scene(load(path))
+    assert win.model.scene == res.scene
+    assert sum(len(a) for a in win.view3d.actors.values()) > 0
+    assert win.view3d.plotter.renderer.GetActors().GetNumberOfItems() > 0
+    mi = win.model.focus_mate()
+    if mi is None:
+        assert win.verdict.state == "none"
+    else:
+        # at the opening state (worst case) the what-if fit is geom's worst-case verdict
+        assert win.verdict.state == ("assembles" if res.mates[mi].assembles else "interferes")
+        assert win.verdict.text().split()[1] == ("ASSEMBLES" if res.mates[mi].assembles else "INTERFERES")
+    _close(win)
+
+
+def test_interfering_scene_says_interferes_in_words_and_colour(qtbot):
+    from geom.analysis import analyse_scene
+    from geom.scenefile import load
+
+    path = ROOT / "scenes" / "sensor_bracket_interference.toml"
+    res = analyse_scene(load(path))
+    win = _open(qtbot, path)
+    m = res.mates[0]
+    assert not m.assembles  # the scene file's own comment: interferes in the worst case
+    amount = res.scene.units.fmt(-m.clearance_min)
+    assert f"INTERFERES by {amount}" in win.verdict.text()
+    from viewer import style
+
+    assert style.INTERFERENCE.lower() in win.verdict.styleSheet().lower()
+    _close(win)
+
+
+# ---------------------------------------------------------------- what-if
+
+
+def test_size_control_readouts_equal_geom_at_that_size(qtbot):
+    from geom.boundaries import FeatureState, bonus, effective_size, tolerance_allowed, virtual_condition
+
+    win = _open(qtbot)
+    m = win.model
+    u = m.scene.units
+    hole = m.scene.feature("cap-bore")
+    controls = win.whatif.groups["cap-bore"]
+    vc_before = win.readouts.value("cap-bore", "virtual condition (MMC) (constant)")
+    bonus_seen = []
+    assert win.readouts.value("cap-bore", "bonus at this size") == u.fmt(bonus(hole, hole.mmc))  # opens at MMC
+    for size in (8.0045, 8.010, 8.015):  # the file's limits are 8.000 .. 8.015
+        with qtbot.waitSignal(win.view3d.rendered, timeout=30_000):
+            controls.size.spin.setValue(size)
+        assert m.states["cap-bore"].size == pytest.approx(size)
+        # independent computation with geom at the same size
+        assert win.readouts.value("cap-bore", "bonus at this size") == u.fmt(bonus(hole, size))
+        assert win.readouts.value("cap-bore", "tolerance allowed at this size") == u.fmt(tolerance_allowed(hole, size))
+        st = FeatureState(size, 1.0, 0.0)
+        assert win.readouts.value("cap-bore", "clear opening normal to A") == u.fmt(effective_size(hole, st))
+        # the VC stays put while the bonus grows
+        assert win.readouts.value("cap-bore", "virtual condition (MMC) (constant)") == u.fmt(virtual_condition(hole))
+        assert win.readouts.value("cap-bore", "virtual condition (MMC) (constant)") == vc_before
+        bonus_seen.append(float(win.readouts.value("cap-bore", "bonus at this size")))
+    assert bonus_seen == sorted(bonus_seen) and bonus_seen[0] > 0  # grows with departure from MMC
+
+    # the slider maps MMC..LMC and moves the spin box with it
+    with qtbot.waitSignal(win.view3d.rendered, timeout=30_000):
+        controls.size.slider.setValue(controls.size.STEPS // 2)
+    mid = hole.limits[0] + 0.5 * (hole.limits[1] - hole.limits[0])
+    assert m.states["cap-bore"].size == pytest.approx(mid)
+    assert controls.size.spin.value() == pytest.approx(mid, abs=10 ** -controls.size.spin.decimals())
+    assert win.readouts.value("cap-bore", "bonus at this size") == u.fmt(bonus(hole, mid))
+    _close(win)
+
+
+def test_share_and_direction_controls_move_the_state_and_the_fit(qtbot):
+    from geom.analysis import clearance_at
+
+    win = _open(qtbot)
+    m = win.model
+    c = win.whatif.groups["cap-bore"]
+    with qtbot.waitSignal(win.view3d.rendered, timeout=30_000):
+        c.share.spin.setValue(40.0)
+    with qtbot.waitSignal(win.view3d.rendered, timeout=30_000):
+        c.direction.spin.setValue(135.0)
+    st = m.states["cap-bore"]
+    assert (st.share, st.direction_deg) == (pytest.approx(0.40), pytest.approx(135.0))
+    hole, pin = m.scene.feature("cap-bore"), m.scene.feature("dowel")
+    expect = clearance_at(hole, pin, st, m.states["dowel"])  # geom's what-if clearance
+    assert m.scene.units.fmt(expect) in win.verdict.text()
+    _close(win)
+
+
+# ---------------------------------------------------------------- bad input
+
+
+def _expected_message(scene, path, mutate) -> str:
+    from geom.scenefile import SceneError
+    from viewer.app.model import parse_dict, scene_dict
+
+    d = scene_dict(scene)
+    mutate(d)
+    with pytest.raises(SceneError) as e:
+        parse_dict(d, path)
+    return str(e.value)
+
+
+@pytest.mark.parametrize("field,text,mutate", [
+    ("tolerance.value", "-0.02", lambda d: d["feature"][0]["tolerance"].__setitem__("value", -0.02)),
+    ("limits[0]", "abc", lambda d: d["feature"][0]["limits"].__setitem__(0, "abc")),
+    ("limits[1]", "7.9", lambda d: d["feature"][0]["limits"].__setitem__(1, 7.9)),  # reversed
+])
+def test_invalid_value_marks_the_field_and_keeps_the_scene(qtbot, field, text, mutate):
+    win = _open(qtbot)
+    m = win.model
+    m.set_focus("feature", "cap-bore")
+    before = m.scene
+    form = win.feature_form
+    w = form.fields[field]
+    w.setText(text)
+    w.editingFinished.emit()
+    expected = _expected_message(before, m.path, mutate)  # the CLI's rules, same text
+    assert form.error_label.text() == expected
+    assert win.messages.text().endswith(expected)
+    assert "c62828" in w.styleSheet()  # red border
+    assert m.scene == before and not m.dirty
+    assert m.undo_stack.count() == 0
+    _close(win)
+
+
+def test_malformed_file_shows_the_cli_message(qtbot, tmp_path):
+    bad = tmp_path / "bad.toml"
+    bad.write_text(GEARBOX.read_text().replace("value = 0.015", 'value = "x"'))
+    cli = subprocess.run(MATEZONE + ["analyze", str(bad)], capture_output=True, text=True, cwd=ROOT)
+    assert cli.returncode == 2
+    win = _open(qtbot)
+    before = win.model.scene
+    assert not win.open_path(str(bad))
+    assert cli.stderr.strip() == "matezone: " + win.messages.text().removeprefix("Error: ")
+    assert win.model.scene == before
+    _close(win)
+
+
+def test_exception_in_a_slot_is_shown_and_the_window_keeps_running(qtbot):
+    from viewer.app.main import install_excepthook
+
+    win = _open(qtbot)
+    old = sys.excepthook
+    try:
+        install_excepthook(win)
+        try:
+            raise RuntimeError("probe failure")
+        except RuntimeError:
+            sys.excepthook(*sys.exc_info())
+    finally:
+        sys.excepthook = old
+    assert "probe failure" in win.messages.text()
+    assert win.isVisible()
+    _close(win)
+
+
+# ---------------------------------------------------------------- files and undo
+
+
+def test_save_reopen_identical(qtbot, tmp_path):
+    from geom.scenefile import dumps, load
+
+    win = _open(qtbot)
+    m = win.model
+    m.set_focus("feature", "dowel")
+    win.feature_form.fields["tolerance.value"].setText("0.004")
+    win.feature_form.fields["tolerance.value"].editingFinished.emit()
+    assert m.scene.feature("dowel").tolerance.value == 0.004 and m.dirty
+    out = tmp_path / "saved.toml"
+    assert win._save_to(str(out))
+    assert not m.dirty
+    assert not list(tmp_path.glob(".saved.toml.*"))  # atomic save leaves no temporary file
+    again = load(out)
+    assert again == m.scene
+    assert out.read_text() == dumps(m.scene)
+    win2 = _open(qtbot, out)
+    assert win2.model.scene == m.scene
+    assert str(out.resolve()) in win2.recent_files()
+    _close(win2)
+    _close(win)
+
+
+def test_undo_redo_of_edits(qtbot):
+    win = _open(qtbot)
+    m = win.model
+    original = m.scene
+    m.set_focus("feature", "cap-bore")
+    f = win.feature_form.fields["length"]
+    f.setText("20")
+    f.editingFinished.emit()
+    assert m.scene.feature("cap-bore").length == 20.0
+    win.feature_form.fields["id"].setText("bore")
+    win.feature_form.fields["id"].editingFinished.emit()
+    assert m.scene.mates[0].hole == "bore"  # the mate follows the rename
+    win.act["undo"].trigger()
+    assert m.scene.mates[0].hole == "cap-bore" and m.scene.feature("cap-bore").length == 20.0
+    win.act["undo"].trigger()
+    assert m.scene == original and not m.dirty
+    assert win.feature_form.fields["length"].text() == "12"
+    win.act["redo"].trigger()
+    assert m.scene.feature("cap-bore").length == 20.0 and m.dirty
+    _close(win)
+
+
+def test_unsaved_changes_prompt(qtbot):
+    win = _open(qtbot)
+    m = win.model
+    m.set_focus("feature", "cap-bore")
+    win.feature_form.fields["length"].setText("13")
+    win.feature_form.fields["length"].editingFinished.emit()
+    asked = []
+    win.confirm = lambda: asked.append(1) or "cancel"
+    win.act["new"].trigger()
+    assert asked and m.scene.feature("cap-bore").length == 13.0  # cancelled: nothing lost
+    win.close()
+    assert win.isVisible()  # cancelled close
+    win.confirm = lambda: "discard"
+    win.act["new"].trigger()
+    assert m.path is None and not m.dirty and len(m.scene.features) == 2
+    _close(win)
+
+
+def test_export_report_runs_in_a_worker_and_writes_files(qtbot, tmp_path):
+    win = _open(qtbot)
+    out = tmp_path / "report"
+    win.export_report(str(out))
+    assert win._thread is not None and win._thread.isRunning() or win.last_export
+    qtbot.waitUntil(lambda: win._thread is None, timeout=180_000)
+    assert win.last_export == str(out), win.messages.text()
+    assert any(out.rglob("*.pdf")) and any(out.rglob("*.png"))
+    _close(win)
+
+
+def test_export_image_is_not_blank(qtbot, tmp_path):
+    from PyQt5.QtGui import QImage
+
+    win = _open(qtbot)
+    p = tmp_path / "view.png"
+    assert win.export_image(str(p)) == str(p)
+    assert _variance(QImage(str(p))) > 50.0
+    _close(win)
+
+
+# ---------------------------------------------------------------- the command
+
+
+def _variance(img) -> float:
+    img = img.convertToFormat(img.Format_RGB888)
+    w, h = img.width(), img.height()
+    ptr = img.constBits()
+    ptr.setsize(img.byteCount())
+    arr = np.frombuffer(ptr, np.uint8).reshape(h, img.bytesPerLine())[:, : w * 3]
+    return float(arr.astype(float).var())
+
+
+def test_screenshot_writes_a_non_blank_window_picture(tmp_path):
+    from PyQt5.QtGui import QImage
+
+    png = tmp_path / "shot.png"
+    r = subprocess.run(MATEZONE + ["view", str(GEARBOX), "--screenshot", str(png)], capture_output=True,
+                       text=True, cwd=ROOT, timeout=180)
+    assert r.returncode == 0, r.stderr
+    img = QImage(str(png))
+    assert img.width() > 800 and img.height() > 500
+    assert _variance(img) > 100.0  # a blank picture has none
+    # the 3D region is rendered, not blank: it holds several distinct colours
+    img = img.convertToFormat(img.Format_RGB32)
+    colours = {img.pixel(x, y) for x in range(img.width() // 3, 2 * img.width() // 3, 7)
+               for y in range(img.height() // 5, img.height() // 2, 7)}
+    assert len(colours) > 20
+
+
+def test_no_display_exits_2_with_a_pointer_to_report():
+    env = {k: v for k, v in os.environ.items() if k not in ("DISPLAY", "WAYLAND_DISPLAY", "QT_QPA_PLATFORM")}
+    r = subprocess.run(MATEZONE + ["view", str(GEARBOX)], capture_output=True, text=True, cwd=ROOT,
+                       env=env, timeout=60)
+    assert r.returncode == 2
+    assert "matezone report" in r.stderr and "display" in r.stderr
+    assert "Traceback" not in r.stderr and "qt.qpa" not in r.stderr
+    r = subprocess.run(MATEZONE, capture_output=True, text=True, cwd=ROOT, env=env, timeout=60)
+    assert r.returncode == 2 and "matezone report" in r.stderr
+
+
+def test_unreachable_display_exits_2():
+    env = dict(os.environ, DISPLAY=":9876")
+    env.pop("WAYLAND_DISPLAY", None)
+    r = subprocess.run(MATEZONE + ["view", str(GEARBOX)], capture_output=True, text=True, cwd=ROOT,
+                       env=env, timeout=60)
+    assert r.returncode == 2
+    assert ":9876" in r.stderr and "matezone report" in r.stderr and "Traceback" not in r.stderr

@@ -1,0 +1,801 @@
+"""Side panels of the window: scene contents, the editor forms, the what-if controls, the
+readout table, the fit verdict and the message bar. Each observes the :class:`SceneModel`."""
+
+from __future__ import annotations
+
+import re
+
+from PyQt5.QtCore import Qt, pyqtSignal
+from PyQt5.QtGui import QBrush, QColor, QFont
+from PyQt5.QtWidgets import (
+    QAbstractItemView, QCheckBox, QComboBox, QDoubleSpinBox, QFormLayout, QFrame, QGridLayout,
+    QGroupBox, QHBoxLayout, QHeaderView, QLabel, QLineEdit, QListWidget, QListWidgetItem,
+    QPushButton, QSizePolicy, QSlider, QTableWidget, QTableWidgetItem, QToolButton, QVBoxLayout,
+    QWidget,
+)
+
+from geom.analysis import term
+from geom.model import Characteristic, Kind, Material, Standard, Units, Zone
+from geom.readout import STANDARD_NAME, feature_heading, feature_rows
+from geom.scenefile import SceneError
+
+from .model import SceneModel, feature_index, mate_verdict_at, rename_in_mates, whatif_rows
+
+ERROR_STYLE = "border: 2px solid #c62828; background: #fff3f3;"
+from viewer import style
+
+OK_GREEN, BAD_RED, NEUTRAL = style.OK, style.INTERFERENCE, "#455a64"
+
+
+def _text_value(text: str):
+    """A typed number, or the raw text so that the scene rules reject it with their message."""
+    t = text.strip()
+    try:
+        return float(t)
+    except ValueError:
+        return t
+
+
+def _opt(text: str):
+    """Optional number field: empty means absent."""
+    return None if not text.strip() else _text_value(text)
+
+
+def _num_text(v) -> str:
+    return "" if v is None else repr(float(v)).removesuffix(".0") if float(v).is_integer() else repr(float(v))
+
+
+def _combo(values, labels=None) -> QComboBox:
+    c = QComboBox()
+    for i, v in enumerate(values):
+        c.addItem(labels[i] if labels else str(v), v)
+    return c
+
+
+def _set_combo(c: QComboBox, value) -> None:
+    i = c.findData(value)
+    c.setCurrentIndex(max(i, 0))
+
+
+# ---------------------------------------------------------------- message bar
+
+
+class MessageBar(QFrame):
+    """One line at the bottom of the side panel: the latest message, coloured by level."""
+
+    def __init__(self, model: SceneModel, parent=None):
+        super().__init__(parent)
+        self.setObjectName("messageBar")
+        lay = QHBoxLayout(self)
+        lay.setContentsMargins(6, 3, 6, 3)
+        self.label = QLabel()
+        self.label.setWordWrap(True)
+        self.label.setTextInteractionFlags(Qt.TextSelectableByMouse)
+        close = QToolButton()
+        close.setText("×")
+        close.setToolTip("Dismiss the message")
+        close.clicked.connect(self.clear)
+        lay.addWidget(self.label, 1)
+        lay.addWidget(close)
+        model.message.connect(self.show_message)
+        model.sceneChanged.connect(lambda: self.clear() if self.level == "error" else None)
+        self.level = ""
+        self.hide()
+
+    def show_message(self, level: str, text: str) -> None:
+        self.level = level
+        colours = {"error": ("#fdecea", BAD_RED), "info": ("#e8f5e9", OK_GREEN)}
+        bg, fg = colours.get(level, ("#eceff1", NEUTRAL))
+        self.setStyleSheet(f"#messageBar {{ background: {bg}; border: 1px solid {fg}; }} QLabel {{ color: {fg}; }}")
+        self.label.setText(("Error: " if level == "error" else "") + text)
+        self.show()
+
+    def clear(self) -> None:
+        self.level = ""
+        self.label.clear()
+        self.hide()
+
+    def text(self) -> str:
+        return self.label.text()
+
+
+# ---------------------------------------------------------------- scene contents
+
+
+class ContentsList(QWidget):
+    """The mates and features of the scene; picking one focuses the views and the editor."""
+
+    def __init__(self, model: SceneModel, parent=None):
+        super().__init__(parent)
+        self.model = model
+        lay = QVBoxLayout(self)
+        lay.setContentsMargins(0, 0, 0, 0)
+        self.list = QListWidget()
+        self.list.setSelectionMode(QAbstractItemView.SingleSelection)
+        self.list.currentItemChanged.connect(self._picked)
+        lay.addWidget(self.list)
+        row = QHBoxLayout()
+        for text, tip, slot in (
+            ("+ hole", "Add a hole feature", lambda: self._add("hole")),
+            ("+ pin", "Add a pin feature", lambda: self._add("pin")),
+            ("+ mate", "Add a mate (a hole receiving a pin)", self._add_mate),
+            ("Remove", "Remove the selected feature (and its mates) or mate", self._remove),
+        ):
+            b = QPushButton(text)
+            b.setToolTip(tip)
+            b.clicked.connect(slot)
+            row.addWidget(b)
+        lay.addLayout(row)
+        model.sceneChanged.connect(self.refresh)
+        model.focusChanged.connect(self._select_focus)
+        self.refresh()
+
+    def refresh(self) -> None:
+        sc = self.model.scene
+        self.list.blockSignals(True)
+        self.list.clear()
+        for i, m in enumerate(sc.mates):
+            it = QListWidgetItem(f"mate {i + 1}: {m.hole} ← {m.pin}")
+            it.setData(Qt.UserRole, ("mate", i))
+            self.list.addItem(it)
+        for f in sc.features:
+            it = QListWidgetItem(f"{f.kind.value} {f.id}" + (f" – {f.name}" if f.name else ""))
+            it.setData(Qt.UserRole, ("feature", f.id))
+            self.list.addItem(it)
+        self.list.blockSignals(False)
+        self._select_focus()
+
+    def _select_focus(self) -> None:
+        self.list.blockSignals(True)
+        for i in range(self.list.count()):
+            if tuple(self.list.item(i).data(Qt.UserRole)) == tuple(self.model.focus):
+                self.list.setCurrentRow(i)
+        self.list.blockSignals(False)
+
+    def _picked(self, item, _prev) -> None:
+        if item is not None:
+            self.model.set_focus(*item.data(Qt.UserRole))
+
+    def _report(self, err: SceneError | None) -> None:
+        if err is not None:
+            self.model.message.emit("error", str(err))
+
+    def _add(self, kind: str) -> None:
+        ids = {f.id for f in self.model.scene.features}
+        n = 1
+        while f"{kind}-{n}" in ids:
+            n += 1
+        fid = f"{kind}-{n}"
+        lim = [10.0, 10.02] if kind == "hole" else [9.96, 9.98]
+        ref = next((f for f in self.model.scene.features if f.kind.value == kind), None)
+        length = ref.length if ref else 10.0
+        if ref:
+            lim = list(ref.limits)
+
+        def mutate(d):
+            d["feature"].append({"id": fid, "kind": kind, "limits": lim, "length": length})
+
+        self._report(self.model.try_edit(mutate, f"add {kind} {fid}"))
+        self.model.set_focus("feature", fid)
+
+    def _add_mate(self) -> None:
+        sc = self.model.scene
+        hole = next((f.id for f in sc.features if f.kind is Kind.HOLE), None)
+        pin = next((f.id for f in sc.features if f.kind is Kind.PIN), None)
+        if hole is None or pin is None:
+            self.model.message.emit("error", "a mate needs a hole and a pin: add them first")
+            return
+        self._report(self.model.try_edit(lambda d: d.setdefault("mate", []).append({"hole": hole, "pin": pin}),
+                                         "add mate"))
+        self.model.set_focus("mate", len(self.model.scene.mates) - 1)
+
+    def _remove(self) -> None:
+        kind, key = self.model.focus
+        if kind == "mate":
+            self._report(self.model.try_edit(lambda d: d["mate"].pop(key), f"remove mate {key + 1}"))
+            return
+
+        def mutate(d):
+            d["feature"] = [f for f in d["feature"] if f["id"] != key]
+            d["mate"] = [m for m in d.get("mate", []) if key not in (m["hole"], m["pin"])]
+
+        self._report(self.model.try_edit(mutate, f"remove {key}"))
+
+
+# ---------------------------------------------------------------- editor forms
+
+
+class _Form(QWidget):
+    """A form whose fields are committed together through the scene rules. A rejected value
+    keeps its text, gets a red border and the rule's message beside it; the scene stays."""
+
+    def __init__(self, model: SceneModel, parent=None):
+        super().__init__(parent)
+        self.model = model
+        self.fields: dict[str, QWidget] = {}
+        self.error_label = QLabel()
+        self.error_label.setObjectName("fieldError")
+        self.error_label.setWordWrap(True)
+        self.error_label.setStyleSheet(f"color: {BAD_RED};")
+        self.error_label.hide()
+        self.bad: QWidget | None = None
+        self._filling = False
+
+    def _line(self, key: str, tip: str = "") -> QLineEdit:
+        w = QLineEdit()
+        w.setToolTip(tip)
+        w.editingFinished.connect(lambda: self.commit(key))
+        self.fields[key] = w
+        return w
+
+    def _choice(self, key: str, values, labels=None) -> QComboBox:
+        c = _combo(values, labels)
+        c.activated.connect(lambda _i: self.commit(key))
+        self.fields[key] = c
+        return c
+
+    def mark(self, key: str | None, err: SceneError | None) -> None:
+        if self.bad is not None:
+            self.bad.setStyleSheet("")
+            self.bad = None
+        if err is None:
+            self.error_label.hide()
+            self.error_label.clear()
+            return
+        w = self.fields.get(key) if key else None
+        if w is not None:
+            w.setStyleSheet(ERROR_STYLE)
+            self.bad = w
+        self.error_label.setText(str(err))
+        self.error_label.show()
+        self.model.message.emit("error", str(err))
+
+    def field_for(self, err: SceneError) -> str | None:
+        """The field a rule's path names, if this form has it."""
+        return None
+
+    def commit(self, key: str) -> None:
+        if self._filling:
+            return
+        err = self.apply()
+        self.mark(self.field_for(err) or key if err else None, err)
+
+    def apply(self) -> SceneError | None:
+        raise NotImplementedError
+
+    def has_error(self) -> bool:
+        return self.bad is not None or not self.error_label.isHidden()
+
+
+class SceneForm(_Form):
+    """Title, units and standard of the scene."""
+
+    def __init__(self, model: SceneModel, parent=None):
+        super().__init__(model, parent)
+        lay = QFormLayout(self)
+        lay.addRow("Title", self._line("title", "Shown on pictures and reports"))
+        lay.addRow("Units", self._choice("units", [u.value for u in Units]))
+        lay.addRow("Standard", self._choice("standard", [s.value for s in Standard],
+                                             [STANDARD_NAME[s].split(" (")[0] for s in Standard]))
+        self.fields["standard"].setToolTip("\n".join(STANDARD_NAME.values()))
+        lay.addRow(self.error_label)
+        model.sceneChanged.connect(self.fill)
+        self.fill()
+
+    def fill(self) -> None:
+        self._filling = True
+        sc = self.model.scene
+        self.fields["title"].setText(sc.title)
+        _set_combo(self.fields["units"], sc.units.value)
+        _set_combo(self.fields["standard"], sc.standard.value)
+        self._filling = False
+        self.mark(None, None)
+
+    def field_for(self, err):
+        return err.path if err.path in self.fields else None
+
+    def apply(self):
+        title = self.fields["title"].text()
+        units = self.fields["units"].currentData()
+        std = self.fields["standard"].currentData()
+
+        def mutate(d):
+            d["title"], d["units"], d["standard"] = title, units, std
+
+        return self.model.try_edit(mutate, "scene settings")
+
+
+class MateForm(_Form):
+    """Which hole receives which pin."""
+
+    def __init__(self, model: SceneModel, parent=None):
+        super().__init__(model, parent)
+        lay = QFormLayout(self)
+        self.index = 0
+        self.title = QLabel()
+        lay.addRow(self.title)
+        lay.addRow("Hole", self._choice("hole", []))
+        lay.addRow("Pin", self._choice("pin", []))
+        lay.addRow(self.error_label)
+        model.sceneChanged.connect(self.fill)
+        model.focusChanged.connect(self.fill)
+
+    def fill(self) -> None:
+        kind, key = self.model.focus
+        if kind != "mate":
+            return
+        self.index = key
+        m = self.model.scene.mates[key]
+        self._filling = True
+        self.title.setText(f"<b>Mate {key + 1}</b>: the hole receives the pin, both seated on datum A")
+        for role in ("hole", "pin"):
+            c = self.fields[role]
+            c.clear()
+            for f in self.model.scene.features:
+                c.addItem(f"{f.id} ({f.kind.value})", f.id)
+            _set_combo(c, getattr(m, role))
+        self._filling = False
+        self.mark(None, None)
+
+    def field_for(self, err):
+        tail = err.path.rsplit(".", 1)[-1]
+        return tail if tail in self.fields else None
+
+    def apply(self):
+        i, h, p = self.index, self.fields["hole"].currentData(), self.fields["pin"].currentData()
+
+        def mutate(d):
+            d["mate"][i] = {"hole": h, "pin": p}
+
+        return self.model.try_edit(mutate, f"mate {i + 1}")
+
+
+class FeatureForm(_Form):
+    """Every value of one feature and its geometric tolerance."""
+
+    def __init__(self, model: SceneModel, parent=None):
+        super().__init__(model, parent)
+        self.fid: str | None = None
+        outer = QVBoxLayout(self)
+        outer.setContentsMargins(0, 0, 0, 0)
+        self.heading = QLabel()
+        self.heading.setWordWrap(True)
+        outer.addWidget(self.heading)
+        lay = QFormLayout()
+        outer.addLayout(lay)
+        lay.addRow("Id", self._line("id", "Unique name; mates follow a rename"))
+        lay.addRow("Name", self._line("name", "Free text shown on pictures (optional)"))
+        lay.addRow("Kind", self._choice("kind", [k.value for k in Kind], ["hole (internal)", "pin (external)"]))
+        lim = QHBoxLayout()
+        lim.addWidget(self._line("limits[0]", "Smallest size"))
+        lim.addWidget(QLabel("to"))
+        lim.addWidget(self._line("limits[1]", "Largest size"))
+        lay.addRow("Size limits", lim)
+        lay.addRow("Length", self._line("length", "Length of engagement along the axis"))
+        at = QHBoxLayout()
+        at.addWidget(QLabel("x"))
+        at.addWidget(self._line("at[0]", "Basic location x on datum A"))
+        at.addWidget(QLabel("y"))
+        at.addWidget(self._line("at[1]", "Basic location y on datum A"))
+        lay.addRow("Basic location", at)
+        lay.addRow("Envelope", self._choice("envelope", [None, True, False],
+                                             ["the standard's default", "required (E)", "not required"]))
+        self.has_tol = QCheckBox("geometric tolerance on the axis")
+        self.has_tol.toggled.connect(lambda _on: self.commit("tolerance"))
+        self.fields["tolerance"] = self.has_tol
+        lay.addRow(self.has_tol)
+        self.tol_box = QGroupBox("Tolerance")
+        tl = QFormLayout(self.tol_box)
+        tl.addRow("Characteristic", self._choice("tolerance.characteristic", [c.value for c in Characteristic]))
+        tl.addRow("Zone", self._choice("tolerance.zone", [z.value for z in Zone],
+                                       ["diameter (cylinder)", "width (two planes)"]))
+        tl.addRow("Value t", self._line("tolerance.value", "Stated tolerance (zone size)"))
+        tl.addRow("Material condition", self._choice("tolerance.material", [m.value for m in Material],
+                                                     ["MMC (M)", "LMC (L)", "RFS (no modifier)"]))
+        tl.addRow("Datums", self._line("tolerance.datums", "Datum letters in order, e.g. A, B"))
+        tl.addRow("Projected zone", self._line("tolerance.projected", "Projected height beyond A (empty: none)"))
+        tl.addRow("Basic angle", self._line("tolerance.angle", "Angle to datum A in degrees (angularity only)"))
+        self.frame = QLabel()
+        self.frame.setStyleSheet("font-family: monospace;")
+        tl.addRow("Frame", self.frame)
+        outer.addWidget(self.tol_box)
+        outer.addWidget(self.error_label)
+        revert = QPushButton("Discard typed values")
+        revert.setToolTip("Show the values of the scene again, dropping rejected input")
+        revert.clicked.connect(self.fill)
+        outer.addWidget(revert, 0, Qt.AlignLeft)
+        outer.addStretch(1)
+        model.sceneChanged.connect(self.fill)
+        model.focusChanged.connect(self._focus)
+        self._focus()
+
+    def _focus(self) -> None:
+        kind, key = self.model.focus
+        fid = key if kind == "feature" else self.model.scene.mates[key].hole
+        if fid != self.fid or not self.has_error():
+            self.fid = fid
+            self.fill()
+
+    def fill(self) -> None:
+        sc = self.model.scene
+        if self.fid not in {f.id for f in sc.features}:
+            self.fid = sc.features[0].id
+        f = sc.feature(self.fid)
+        r = self.model.result.features[f.id]
+        u = sc.units
+        self._filling = True
+        self.heading.setText(f"<b>{feature_heading(r, u)}</b>")
+        F = self.fields
+        F["id"].setText(f.id)
+        F["name"].setText(f.name)
+        _set_combo(F["kind"], f.kind.value)
+        F["limits[0]"].setText(_num_text(f.limits[0]))
+        F["limits[1]"].setText(_num_text(f.limits[1]))
+        F["length"].setText(_num_text(f.length))
+        F["at[0]"].setText(_num_text(f.at[0]))
+        F["at[1]"].setText(_num_text(f.at[1]))
+        _set_combo(F["envelope"], f.envelope)
+        t = f.tolerance
+        self.has_tol.setChecked(t is not None)
+        self.tol_box.setEnabled(t is not None)
+        if t is not None:
+            _set_combo(F["tolerance.characteristic"], t.characteristic.value)
+            _set_combo(F["tolerance.zone"], t.zone.value)
+            F["tolerance.value"].setText(_num_text(t.value))
+            _set_combo(F["tolerance.material"], t.material.value)
+            F["tolerance.datums"].setText(", ".join(t.datums))
+            F["tolerance.projected"].setText(_num_text(t.projected))
+            F["tolerance.angle"].setText(_num_text(t.angle))
+            self.frame.setText(t.symbol(u))
+        else:
+            self.frame.setText("")
+        self._filling = False
+        self.mark(None, None)
+
+    def collect(self) -> dict:
+        """The feature table the widgets describe (as a TOML file would hold it)."""
+        F = self.fields
+        d: dict = {"id": F["id"].text().strip(), "kind": F["kind"].currentData(),
+                   "limits": [_text_value(F["limits[0]"].text()), _text_value(F["limits[1]"].text())],
+                   "length": _text_value(F["length"].text()),
+                   "at": [_text_value(F["at[0]"].text()), _text_value(F["at[1]"].text())]}
+        if F["name"].text().strip():
+            d["name"] = F["name"].text().strip()
+        if F["envelope"].currentData() is not None:
+            d["envelope"] = F["envelope"].currentData()
+        if self.has_tol.isChecked():
+            t = {"characteristic": F["tolerance.characteristic"].currentData(),
+                 "zone": F["tolerance.zone"].currentData(),
+                 "value": _text_value(F["tolerance.value"].text()),
+                 "material": F["tolerance.material"].currentData(),
+                 "datums": [x for x in re.split(r"[\s,|]+", F["tolerance.datums"].text().strip()) if x]}
+            for k in ("projected", "angle"):
+                v = _opt(F[f"tolerance.{k}"].text())
+                if v is not None:
+                    t[k] = v
+            d["tolerance"] = t
+        return d
+
+    def field_for(self, err):
+        m = re.match(r'^feature\[\d+\](?: "[^"]*")?\.?(.*)$', err.path)
+        if not m:
+            return None
+        key = m.group(1)
+        while key and key not in self.fields:  # e.g. "tolerance.datums[0]" -> "tolerance.datums"
+            cut = max(key.rfind("["), key.rfind("."))
+            if cut <= 0:
+                break
+            key = key[:cut]
+        return key if key in self.fields else None
+
+    def apply(self):
+        if self.fid is None:
+            return None
+        old = self.model.scene.feature(self.fid)
+        i = feature_index(self.model.scene, self.fid)
+        new = self.collect()
+        new_id = new["id"]
+        renames = {old.id: new_id} if new_id and new_id != old.id else {}
+
+        def mutate(d):
+            if "measured" in d["feature"][i]:
+                new["measured"] = d["feature"][i]["measured"]
+            d["feature"][i] = new
+            for o, n in renames.items():
+                rename_in_mates(d, o, n)
+
+        err = self.model.try_edit(mutate, f"edit {old.id}", renames)
+        if err is None and renames:
+            self.fid = new_id
+            self.model.set_focus("feature", new_id) if self.model.focus[0] == "feature" else None
+        self.tol_box.setEnabled(self.has_tol.isChecked())
+        return err
+
+
+# ---------------------------------------------------------------- what-if controls
+
+
+class _SliderSpin(QWidget):
+    """A slider for sweeping plus a spin box for an exact value, kept in step."""
+
+    valueChanged = pyqtSignal(float)
+    STEPS = 1000
+
+    def __init__(self, lo: float, hi: float, decimals: int, suffix: str = "", left="", right="", parent=None):
+        super().__init__(parent)
+        self.lo, self.hi = lo, hi
+        lay = QGridLayout(self)
+        lay.setContentsMargins(0, 0, 0, 0)
+        self.slider = QSlider(Qt.Horizontal)
+        self.slider.setRange(0, self.STEPS)
+        self.spin = QDoubleSpinBox()
+        self.spin.setDecimals(decimals)
+        self.spin.setRange(lo, hi)
+        self.spin.setSingleStep(10.0 ** -(decimals - 1) if decimals > 1 else 1.0)
+        self.spin.setSuffix(suffix)
+        self.spin.setKeyboardTracking(False)
+        self.spin.setMinimumWidth(110)
+        lay.addWidget(self.slider, 0, 0, 1, 2)
+        lay.addWidget(self.spin, 0, 2)
+        lay.setColumnStretch(0, 1)
+        lay.setColumnStretch(1, 1)
+        if left or right:
+            l, r = QLabel(left), QLabel(right)
+            for w in (l, r):
+                w.setStyleSheet("color: #607d8b; font-size: 9pt;")
+            lay.addWidget(l, 1, 0)
+            lay.addWidget(r, 1, 1, Qt.AlignRight)
+        self.slider.valueChanged.connect(self._from_slider)
+        self.spin.valueChanged.connect(self._from_spin)
+
+    def _from_slider(self, pos: int) -> None:
+        v = self.lo + (self.hi - self.lo) * pos / self.STEPS
+        self.spin.blockSignals(True)
+        self.spin.setValue(v)
+        self.spin.blockSignals(False)
+        self.valueChanged.emit(v)
+
+    def _from_spin(self, v: float) -> None:
+        self._place_slider(v)
+        self.valueChanged.emit(v)
+
+    def _place_slider(self, v: float) -> None:
+        self.slider.blockSignals(True)
+        span = self.hi - self.lo
+        self.slider.setValue(round((v - self.lo) / span * self.STEPS) if span else 0)
+        self.slider.blockSignals(False)
+
+    def set_value(self, v: float) -> None:
+        self.spin.blockSignals(True)
+        self.spin.setValue(v)
+        self.spin.blockSignals(False)
+        self._place_slider(v)
+
+    def value(self) -> float:
+        return self.spin.value()
+
+
+class FeatureControls(QGroupBox):
+    """Produced size (MMC to LMC), tilt direction and share used, for one feature."""
+
+    def __init__(self, model: SceneModel, fid: str, parent=None):
+        f = model.scene.feature(fid)
+        super().__init__(f"{f.kind.value} {fid}", parent)
+        self.model, self.fid = model, fid
+        u = model.scene.units
+        st = model.scene.standard
+        dec = u.decimals + 1
+        lay = QFormLayout(self)
+        mm, lm = term("mmc", st)[0], term("lmc", st)[0]
+        # the slider runs from MMC (left) to LMC (right) whichever way the size grows
+        self.size = _SliderSpin(min(f.mmc, f.lmc), max(f.mmc, f.lmc), dec, f" {u.value}",
+                                f"{mm} {u.fmt(f.mmc)}", f"{lm} {u.fmt(f.lmc)}")
+        self.size.slider.setInvertedAppearance(f.mmc > f.lmc)
+        self.size.slider.setToolTip("Left: MMC (smallest hole / largest pin), right: LMC")
+        self.direction = _SliderSpin(0.0, 360.0, 1, " deg")
+        self.share = _SliderSpin(0.0, 100.0, 1, " %")
+        self.size.valueChanged.connect(lambda v: model.set_state(fid, size=v))
+        self.direction.valueChanged.connect(lambda v: model.set_state(fid, direction_deg=v))
+        self.share.valueChanged.connect(lambda v: model.set_state(fid, share=v / 100.0))
+        lay.addRow("Produced size", self.size)
+        has_tol = f.tolerance is not None
+        lay.addRow("Tilt direction", self.direction)
+        lay.addRow("Tolerance used", self.share)
+        for w in (self.direction, self.share):
+            w.setEnabled(has_tol)
+        if f.tolerance is not None and f.tolerance.zone is Zone.WIDTH:
+            self.direction.setEnabled(False)
+            self.direction.setToolTip("A width zone allows tilt across its planes only")
+        self.sync()
+
+    def sync(self) -> None:
+        st = self.model.states[self.fid]
+        self.size.set_value(st.size)
+        self.direction.set_value(st.direction_deg)
+        self.share.set_value(st.share * 100.0)
+
+
+class WhatIfPanel(QWidget):
+    """What-if controls for the features in focus; the worst case is MMC with all of the
+    tolerance used."""
+
+    def __init__(self, model: SceneModel, parent=None):
+        super().__init__(parent)
+        self.model = model
+        self.lay = QVBoxLayout(self)
+        self.lay.setContentsMargins(0, 0, 0, 0)
+        head = QHBoxLayout()
+        hint = QLabel("Move a size from MMC toward LMC: the bonus grows, the VC stays put.")
+        hint.setWordWrap(True)
+        hint.setStyleSheet("color: #546e7a;")
+        reset = QPushButton("Worst case")
+        reset.setToolTip("Every feature at MMC, all of the allowed tolerance used")
+        reset.clicked.connect(model.reset_states)
+        head.addWidget(hint, 1)
+        head.addWidget(reset)
+        self.lay.addLayout(head)
+        self.groups: dict[str, FeatureControls] = {}
+        self._shown: tuple = ()
+        model.focusChanged.connect(self.rebuild)
+        model.sceneChanged.connect(lambda: self.rebuild(force=True))
+        model.statesChanged.connect(self.sync)
+        self.rebuild(force=True)
+
+    def rebuild(self, force: bool = False) -> None:
+        fids = tuple(self.model.focus_features())
+        key = (fids, self.model.scene.units)
+        if key == self._shown and not force:
+            return
+        self._shown = key
+        for g in self.groups.values():
+            self.lay.removeWidget(g)
+            g.hide()
+            g.setParent(None)
+            g.deleteLater()
+        self.groups = {}
+        for fid in fids:
+            g = FeatureControls(self.model, fid)
+            self.groups[fid] = g
+            self.lay.addWidget(g)
+
+    def sync(self) -> None:
+        for g in self.groups.values():
+            if g.fid in self.model.states:
+                g.sync()
+
+
+# ---------------------------------------------------------------- verdict and readouts
+
+
+class VerdictBanner(QFrame):
+    """ASSEMBLES / INTERFERES, in colour and in words, at the sizes set and in the worst case."""
+
+    def __init__(self, model: SceneModel, parent=None):
+        super().__init__(parent)
+        self.model = model
+        self.setObjectName("verdict")
+        lay = QVBoxLayout(self)
+        lay.setContentsMargins(10, 6, 10, 6)
+        self.headline = QLabel()
+        f = QFont()
+        f.setPointSize(13)
+        f.setBold(True)
+        self.headline.setFont(f)
+        self.headline.setWordWrap(True)
+        self.detail = QLabel()
+        self.detail.setWordWrap(True)
+        lay.addWidget(self.headline)
+        lay.addWidget(self.detail)
+        self.setSizePolicy(QSizePolicy.Preferred, QSizePolicy.Maximum)
+        model.statesChanged.connect(self.refresh)
+        model.focusChanged.connect(self.refresh)
+        model.sceneChanged.connect(self.refresh)
+        self.refresh()
+
+    def refresh(self) -> None:
+        mi = self.model.focus_mate()
+        if mi is None:
+            self.state = "none"
+            self._paint(NEUTRAL, "#eceff1", "NO MATE: fit not evaluated",
+                        "This feature is in no mate. Add a mate to judge a fit.")
+            return
+        v = mate_verdict_at(self.model.result, mi, self.model.states)
+        m = self.model.scene.mates[mi]
+        self.state = "assembles" if v.assembles else "interferes"
+        mark = "✔" if v.assembles else "✖"
+        fg, bg = (OK_GREEN, "#e8f5e9") if v.assembles else (BAD_RED, "#ffebee")
+        self._paint(fg, bg, f"{mark} {v.headline}",
+                    f"Mate {mi + 1} ({m.hole} ← {m.pin}). Worst case: {v.worst_case}.<br>"
+                    f"<span style='font-family:monospace'>{v.formula}</span>")
+
+    def _paint(self, fg: str, bg: str, head: str, detail: str) -> None:
+        self.setStyleSheet(f"#verdict {{ background: {bg}; border: 2px solid {fg}; border-radius: 4px; }}"
+                           f" QLabel {{ color: {fg}; }}")
+        self.headline.setText(head)
+        self.detail.setText(detail)
+
+    def text(self) -> str:
+        return self.headline.text()
+
+
+class ReadoutTable(QTableWidget):
+    """Quantity, value and formula rows: the what-if state first, then the fixed boundaries.
+    Every number and formula comes from geom."""
+
+    def __init__(self, model: SceneModel, parent=None):
+        super().__init__(0, 3, parent)
+        self.model = model
+        self.setHorizontalHeaderLabels(["Quantity", "Value", "Formula"])
+        self.verticalHeader().hide()
+        self.setEditTriggers(QAbstractItemView.NoEditTriggers)
+        self.setWordWrap(False)
+        h = self.horizontalHeader()
+        h.setSectionResizeMode(0, QHeaderView.ResizeToContents)
+        h.setSectionResizeMode(1, QHeaderView.ResizeToContents)
+        h.setSectionResizeMode(2, QHeaderView.Stretch)
+        self.values: dict[tuple[str, str], str] = {}  # (feature id, quantity) -> value shown
+        model.statesChanged.connect(self.refresh)
+        model.focusChanged.connect(self.refresh)
+        model.sceneChanged.connect(self.refresh)
+        self.refresh()
+
+    def _add(self, cells, bold=False, bg: str | None = None, tip: str = "") -> None:
+        r = self.rowCount()
+        self.insertRow(r)
+        for c, text in enumerate(cells):
+            it = QTableWidgetItem(text)
+            if bold:
+                f = it.font()
+                f.setBold(True)
+                it.setFont(f)
+            if bg:
+                it.setBackground(QBrush(QColor(bg)))
+            if c == 1:
+                it.setTextAlignment(Qt.AlignRight | Qt.AlignVCenter)
+            it.setToolTip(tip or text)
+            self.setItem(r, c, it)
+
+    def refresh(self) -> None:
+        m = self.model
+        res, sc = m.result, m.scene
+        u, st = sc.units, sc.standard
+        self.setUpdatesEnabled(False)
+        self.setRowCount(0)
+        self.values = {}
+        for fid in m.focus_features():
+            r = res.features[fid]
+            self._add((f"{r.feature.kind.value} {fid} at the sizes set", "", ""), bold=True, bg="#e3f2fd")
+            for row in whatif_rows(res, fid, m.states[fid]):
+                self.values[(fid, row.quantity)] = row.value
+                self._add((row.quantity, row.value, row.formula), bg="#fff8e1" if row.constant else None,
+                          tip="Does not change with the produced size" if row.constant else "")
+            self._add((f"{fid}: limits and worst-case boundaries", "", ""), bold=True, bg="#eceff1")
+            for q, v, fml in feature_rows(r, u, st):
+                self.values[(fid, q)] = v
+                self._add((q, v, fml))
+            for n in r.notes:
+                self._add(("note", "", n))
+        mi = m.focus_mate()
+        if mi is not None:
+            mr = res.mates[mi]
+            self._add((f"mate {mi + 1}: worst case", "", ""), bold=True, bg="#eceff1")
+            from geom.analysis import mate_formula
+            self._add(("worst-case clearance", u.fmt(mr.clearance_min, signed=True),
+                       mate_formula(mr, u, st)))
+            self._add(("clearance from sizes alone", u.fmt(mr.clearance_min_size, signed=True),
+                       f"hole {term('mmc', st)[0]} - pin {term('mmc', st)[0]}"))
+            self._add(("loosest fit from sizes", u.fmt(mr.clearance_max, signed=True),
+                       f"hole {term('lmc', st)[0]} - pin {term('lmc', st)[0]}"))
+            for a in mr.assumptions:
+                self._add(("assumes", "", a))
+        for fid, fr in res.fasteners.items():
+            self._add((f"fastener {fid} ({fr.fastener.kind})", "", ""), bold=True, bg="#eceff1")
+            self._add(("position tolerance", u.fmt(fr.position_tolerance.value),
+                       fr.position_tolerance.formula(u, st)))
+            if fr.position_tolerance_unprojected is not None:
+                self._add(("without a projected zone", u.fmt(fr.position_tolerance_unprojected.value),
+                           fr.position_tolerance_unprojected.formula(u, st)))
+        self.setUpdatesEnabled(True)
+
+    def value(self, fid: str, quantity: str) -> str:
+        return self.values[(fid, quantity)]

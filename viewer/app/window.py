@@ -1,0 +1,432 @@
+"""The main window: panels around the 3D and 2D views, menus, files, undo, export."""
+
+from __future__ import annotations
+
+import os
+import subprocess
+import sys
+import tempfile
+import traceback
+from pathlib import Path
+
+from PyQt5.QtCore import QObject, QSettings, Qt, QThread, QTimer, pyqtSignal
+from PyQt5.QtGui import QKeySequence
+from PyQt5.QtWidgets import (
+    QAction, QFileDialog, QLabel, QMainWindow, QMessageBox, QProgressDialog, QSplitter, QTabWidget,
+    QVBoxLayout, QWidget,
+)
+
+from geom.readout import CAUTION
+from geom.scenefile import SceneError, save
+
+from .model import SceneModel
+from .panels import ContentsList, FeatureForm, MateForm, MessageBar, ReadoutTable, SceneForm, VerdictBanner, WhatIfPanel
+
+APP_NAME = "matezone"
+RECENT_MAX = 8
+FILE_FILTER = "Scene files (*.toml);;All files (*)"
+
+
+def settings() -> QSettings:
+    return QSettings("matezone", "matezone")
+
+
+class ReportWorker(QObject):
+    """Runs the report pipeline off the GUI thread: ``matezone report`` on the scene shown
+    (written to a temporary file under its own name), with the what-if sizes. A separate
+    process keeps the off-screen renderer apart from the window's OpenGL context."""
+
+    progress = pyqtSignal(str)
+    finished = pyqtSignal(str)  # output folder
+    failed = pyqtSignal(str)
+
+    def __init__(self, scene, name: str, folder: str, sizes: dict[str, float], view: str):
+        super().__init__()
+        self.scene, self.name, self.folder, self.sizes, self.view = scene, name, folder, sizes, view
+        self.proc: subprocess.Popen | None = None
+
+    def command(self, scene_path: str) -> list[str]:
+        cmd = [sys.executable, "-m", "matezone.cli", "report", scene_path, "--out", self.folder,
+               "--view", self.view]
+        for fid, size in self.sizes.items():
+            cmd += ["--size", f"{fid}={size!r}"]
+        return cmd
+
+    def run(self) -> None:
+        try:
+            with tempfile.TemporaryDirectory(prefix="matezone-report-") as tmp:
+                path = os.path.join(tmp, self.name if self.name.endswith(".toml") else "scene.toml")
+                save(self.scene, path)
+                self.progress.emit("rendering pictures and writing the PDF…")
+                env = dict(os.environ, PYTHONUNBUFFERED="1")
+                self.proc = subprocess.Popen(self.command(path), stdout=subprocess.PIPE, stderr=subprocess.PIPE,
+                                             text=True, env=env, cwd=str(Path(__file__).resolve().parents[2]))
+                for line in self.proc.stdout:
+                    if line.strip():
+                        self.progress.emit(line.strip()[:120])
+                err = self.proc.stderr.read()
+                code = self.proc.wait()
+            if code == 0:
+                self.finished.emit(self.folder)
+            else:
+                lines = [x for x in err.strip().splitlines() if x.strip()]
+                self.failed.emit(lines[-1] if lines else f"matezone report exited with status {code}")
+        except Exception as e:  # the message goes to the window; the window keeps running
+            self.failed.emit(f"{type(e).__name__}: {e}")
+
+    def cancel(self) -> None:
+        if self.proc is not None and self.proc.poll() is None:
+            self.proc.terminate()
+
+
+class MainWindow(QMainWindow):
+    """matezone's desktop window."""
+
+    def __init__(self, model: SceneModel | None = None, with_views: bool = True):
+        super().__init__()
+        self.model = model or SceneModel()
+        self.setWindowTitle(APP_NAME)
+        self.resize(1560, 960)
+        self.confirm = self._ask_unsaved  # replaceable in tests: returns "save" | "discard" | "cancel"
+        self._thread: QThread | None = None
+        self._worker: ReportWorker | None = None
+        self.progress: QProgressDialog | None = None
+        self.last_export: str | None = None
+
+        m = self.model
+        # --- left column: contents, what-if / edit tabs, messages
+        left = QWidget()
+        ll = QVBoxLayout(left)
+        ll.setContentsMargins(4, 4, 4, 4)
+        ll.addWidget(QLabel("<b>Scene contents</b>"))
+        self.contents = ContentsList(m)
+        self.contents.setMaximumHeight(190)
+        ll.addWidget(self.contents)
+        self.tabs = QTabWidget()
+        self.whatif = WhatIfPanel(m)
+        wi = QWidget()
+        wl = QVBoxLayout(wi)
+        wl.addWidget(self.whatif)
+        wl.addStretch(1)
+        self.tabs.addTab(wi, "What-if")
+        self.feature_form = FeatureForm(m)
+        self.mate_form = MateForm(m)
+        ed = QWidget()
+        el = QVBoxLayout(ed)
+        el.addWidget(self.mate_form)
+        el.addWidget(self.feature_form, 1)
+        self.tabs.addTab(ed, "Edit feature")
+        self.scene_form = SceneForm(m)
+        sw = QWidget()
+        sl = QVBoxLayout(sw)
+        sl.addWidget(self.scene_form)
+        sl.addStretch(1)
+        self.tabs.addTab(sw, "Scene")
+        ll.addWidget(self.tabs, 1)
+        self.messages = MessageBar(m)
+        ll.addWidget(self.messages)
+
+        # --- centre: verdict, 3D | 2D, readouts
+        centre = QWidget()
+        cl = QVBoxLayout(centre)
+        cl.setContentsMargins(4, 4, 4, 4)
+        self.verdict = VerdictBanner(m)
+        cl.addWidget(self.verdict)
+        # 3D and 2D views side by side over the full-width readout table
+        vsplit = QSplitter(Qt.Vertical)
+        hsplit = QSplitter(Qt.Horizontal)
+        self.view3d = None
+        self.views2d = None
+        if with_views:
+            from .views import View3D, Views2D
+
+            self.view3d = View3D(m)
+            self.views2d = Views2D(m)
+            hsplit.addWidget(self.view3d)
+            hsplit.addWidget(self.views2d)
+            hsplit.setSizes([600, 580])
+        vsplit.addWidget(hsplit)
+        self.readouts = ReadoutTable(m)
+        vsplit.addWidget(self.readouts)
+        vsplit.setSizes([600, 280])
+        cl.addWidget(vsplit, 1)
+
+        split = QSplitter(Qt.Horizontal)
+        split.addWidget(left)
+        split.addWidget(centre)
+        split.setSizes([380, 1180])
+        split.setStretchFactor(1, 1)
+        self.setCentralWidget(split)
+
+        self._menus()
+        m.pathChanged.connect(lambda _p: self._title())
+        m.dirtyChanged.connect(lambda _d: self._title())
+        m.sceneChanged.connect(self._title)
+        m.focusChanged.connect(self._focus_tab)
+        self._title()
+        self.statusBar().showMessage("Drag to rotate, right-drag or wheel to zoom, middle-drag to pan.")
+
+    # ------------------------------------------------------------ menus
+
+    def _menus(self) -> None:
+        mb = self.menuBar()
+        fm = mb.addMenu("&File")
+        self.act = {}
+
+        def add(menu, key, text, slot, shortcut=None, tip=""):
+            a = QAction(text, self)
+            if shortcut is not None:
+                a.setShortcut(QKeySequence(shortcut))
+            a.setStatusTip(tip)
+            a.triggered.connect(lambda _c=False: slot())
+            menu.addAction(a)
+            self.act[key] = a
+            return a
+
+        add(fm, "new", "&New", self.file_new, QKeySequence.New, "Start a new scene with one hole, one pin and a mate")
+        add(fm, "open", "&Open…", self.file_open, QKeySequence.Open, "Open a scene file")
+        self.recent_menu = fm.addMenu("Open &recent")
+        self.recent_menu.aboutToShow.connect(self._fill_recent)
+        fm.addSeparator()
+        add(fm, "save", "&Save", self.file_save, QKeySequence.Save)
+        add(fm, "save_as", "Save &as…", self.file_save_as, QKeySequence.SaveAs)
+        fm.addSeparator()
+        add(fm, "export_report", "Export &report…", self.export_report, "Ctrl+Shift+R",
+            "Pictures, PDF and results.json, as `matezone report` writes them")
+        add(fm, "export_image", "Export &image…", self.export_image, "Ctrl+Shift+E",
+            "Save the 3D view, or the 2D view shown, as a picture")
+        fm.addSeparator()
+        add(fm, "quit", "&Quit", self.close, QKeySequence.Quit)
+
+        em = mb.addMenu("&Edit")
+        undo = self.model.undo_stack.createUndoAction(self, "&Undo")
+        undo.setShortcut(QKeySequence.Undo)
+        redo = self.model.undo_stack.createRedoAction(self, "&Redo")
+        redo.setShortcut(QKeySequence.Redo)
+        em.addAction(undo)
+        em.addAction(redo)
+        self.act["undo"], self.act["redo"] = undo, redo
+        em.addSeparator()
+        add(em, "worst", "&Worst case", self.model.reset_states, "Ctrl+0",
+            "Every feature at MMC with all of its tolerance used")
+
+        vm = mb.addMenu("&View")
+        if self.view3d is not None:
+            for i, (v, b) in enumerate(self.view3d.view_buttons.items()):
+                add(vm, f"view_{v}", f"Camera: {b.text()}", lambda v=v: self.view3d.set_view(v), f"Ctrl+{i + 1}")
+            vm.addSeparator()
+            lm = vm.addMenu("Layers")
+            for a in self.view3d.layer_actions.values():
+                lm.addAction(a)
+
+        hm = mb.addMenu("&Help")
+        add(hm, "about", "&About matezone", self._about)
+
+    def _about(self) -> None:
+        QMessageBox.about(self, "About matezone",
+                          "<b>matezone</b> shows the worst-case fit of toleranced holes and pins: "
+                          "MMC/LMC, bonus, virtual and resultant condition, clearance.<br><br>" + CAUTION)
+
+    def _title(self) -> None:
+        m = self.model
+        self.setWindowTitle(f"{m.label}[*] – {m.scene.title} – {APP_NAME}")
+        self.setWindowModified(m.dirty)
+
+    def _focus_tab(self) -> None:
+        kind, _ = self.model.focus
+        self.mate_form.setVisible(kind == "mate")
+
+    # ------------------------------------------------------------ files
+
+    def _ask_unsaved(self) -> str:
+        b = QMessageBox.question(
+            self, "Unsaved changes", f"{self.model.label} has unsaved changes. Save them first?",
+            QMessageBox.Save | QMessageBox.Discard | QMessageBox.Cancel, QMessageBox.Save)
+        return {QMessageBox.Save: "save", QMessageBox.Discard: "discard"}.get(b, "cancel")
+
+    def maybe_save(self) -> bool:
+        """True when it is fine to drop the current scene."""
+        if not self.model.dirty:
+            return True
+        answer = self.confirm()
+        if answer == "save":
+            return self.file_save()
+        return answer == "discard"
+
+    def file_new(self) -> None:
+        if self.maybe_save():
+            self.model.new()
+            self.model.message.emit("info", "new scene: one hole, one pin and a mate to edit")
+
+    def file_open(self) -> None:
+        if not self.maybe_save():
+            return
+        start = str(Path(self.model.path).parent) if self.model.path else str(Path.cwd())
+        path, _ = QFileDialog.getOpenFileName(self, "Open scene", start, FILE_FILTER)
+        if path:
+            self.open_path(path, ask=False)
+
+    def open_path(self, path: str, ask: bool = True) -> bool:
+        """Open a scene file; a bad file leaves the current scene and shows the CLI's message."""
+        if ask and not self.maybe_save():
+            return False
+        try:
+            self.model.open(path)
+        except SceneError as e:
+            self.model.message.emit("error", str(e))
+            return False
+        self._add_recent(path)
+        self.model.message.emit("info", f"opened {path}")
+        return True
+
+    def file_save(self) -> bool:
+        if not self.model.path:
+            return self.file_save_as()
+        return self._save_to(self.model.path)
+
+    def file_save_as(self) -> bool:
+        start = self.model.path or str(Path.cwd() / "scene.toml")
+        path, _ = QFileDialog.getSaveFileName(self, "Save scene as", start, FILE_FILTER)
+        if not path:
+            return False
+        if not path.endswith(".toml"):
+            path += ".toml"
+        return self._save_to(path)
+
+    def _save_to(self, path: str) -> bool:
+        try:
+            self.model.save(path)
+        except OSError as e:
+            self.model.message.emit("error", f"{path}: cannot be written ({e.strerror or e})")
+            return False
+        self._add_recent(path)
+        return True
+
+    def recent_files(self) -> list[str]:
+        v = settings().value("recent", [])
+        if isinstance(v, str):
+            v = [v]
+        return [p for p in (v or []) if p]
+
+    def _add_recent(self, path: str) -> None:
+        p = str(Path(path).resolve())
+        files = [p] + [f for f in self.recent_files() if f != p]
+        settings().setValue("recent", files[:RECENT_MAX])
+
+    def _fill_recent(self) -> None:
+        self.recent_menu.clear()
+        files = self.recent_files()
+        if not files:
+            a = self.recent_menu.addAction("(none yet)")
+            a.setEnabled(False)
+            return
+        for i, p in enumerate(files):
+            a = self.recent_menu.addAction(f"&{i + 1} {Path(p).name}  –  {Path(p).parent}")
+            a.triggered.connect(lambda _c=False, p=p: self.open_path(p))
+        self.recent_menu.addSeparator()
+        clear = self.recent_menu.addAction("Clear list")
+        clear.triggered.connect(lambda: settings().setValue("recent", []))
+
+    # ------------------------------------------------------------ export
+
+    def export_image(self, path: str | None = None) -> str | None:
+        if path is None:
+            path, _ = QFileDialog.getSaveFileName(
+                self, "Export image", str(Path.cwd() / "matezone.png"),
+                "3D view (*.png);;2D view shown (*.svg *.pdf *.png)")
+        if not path:
+            return None
+        try:
+            if Path(path).suffix.lower() in (".svg", ".pdf") and self.views2d is not None:
+                self.views2d.figure().savefig(path)
+            elif self.view3d is not None:
+                self.view3d.plotter.screenshot(path)
+            else:
+                self.grab().save(path)
+        except (OSError, ValueError) as e:
+            self.model.message.emit("error", f"{path}: cannot be written ({e})")
+            return None
+        self.model.message.emit("info", f"picture saved: {path}")
+        return path
+
+    def export_report(self, folder: str | None = None) -> None:
+        if self._thread is not None:
+            self.model.message.emit("error", "a report is already being written")
+            return
+        if folder is None:
+            folder = QFileDialog.getExistingDirectory(self, "Export report into folder", str(Path.cwd()))
+        if not folder:
+            return
+        m = self.model
+        sizes = {fid: st.size for fid, st in m.states.items()}
+        view = self.view3d.current_view if self.view3d is not None else "iso"
+        self.progress = QProgressDialog("Writing the report…", "Cancel", 0, 0, self)
+        self.progress.setWindowTitle("Export report")
+        self.progress.setWindowModality(Qt.WindowModal)
+        self.progress.setMinimumDuration(0)
+        self._thread = QThread(self)
+        self._worker = ReportWorker(m.scene, m.label if m.path else "scene.toml", folder, sizes, view)
+        self.progress.canceled.connect(self._worker.cancel)
+        self._worker.moveToThread(self._thread)
+        self._thread.started.connect(self._worker.run)
+        self._worker.progress.connect(self._report_progress)
+        self._worker.finished.connect(self._report_done)
+        self._worker.failed.connect(self._report_failed)
+        self._thread.start()
+
+    def _report_progress(self, what: str) -> None:
+        if self.progress is not None:
+            self.progress.setLabelText(what)
+
+    def _end_report(self) -> None:
+        if self.progress is not None:
+            self.progress.canceled.disconnect()
+            self.progress.reset()
+            self.progress.deleteLater()
+            self.progress = None
+        if self._thread is not None:
+            self._thread.quit()
+            self._thread.wait()
+            self._thread.deleteLater()
+        self._thread, self._worker = None, None
+
+    def _report_done(self, folder: str) -> None:
+        self._end_report()
+        self.last_export = folder
+        self.model.message.emit("info", f"report written to {folder}")
+
+    def _report_failed(self, msg: str) -> None:
+        self._end_report()
+        self.last_export = None
+        self.model.message.emit("error", f"report not written: {msg}")
+
+    # ------------------------------------------------------------ errors, closing, screenshots
+
+    def show_exception(self, etype, value, tb) -> None:
+        """sys.excepthook: the error is shown in the window, which keeps running."""
+        text = "".join(traceback.format_exception_only(etype, value)).strip()
+        sys.stderr.write("".join(traceback.format_exception(etype, value, tb)))
+        self.model.message.emit("error", f"internal error, your scene is unchanged: {text}")
+
+    def closeEvent(self, event) -> None:
+        if not self.maybe_save():
+            event.ignore()
+            return
+        if self._thread is not None:
+            if self._worker is not None:
+                self._worker.cancel()
+            self._thread.quit()
+            self._thread.wait()
+        if self.view3d is not None:
+            self.view3d.close_plotter()
+        event.accept()
+
+    def save_screenshot(self, path: str) -> None:
+        """A picture of the whole window (the 3D view included) as it is shown."""
+        if self.view3d is not None:
+            self.view3d.plotter.render()
+        if self.views2d is not None:
+            self.views2d.refresh_current()
+        pm = self.grab()
+        if not pm.save(path):
+            raise OSError(f"{path}: cannot be written")
