@@ -1,0 +1,69 @@
+"""``matezone report SCENE --out DIR [--size ID=VALUE ...] [--view NAME]``: write the pictures,
+the PDF evidence report and results.json without a display."""
+
+from __future__ import annotations
+
+import math
+import os
+from pathlib import Path
+
+from matezone.cli import UserError
+
+
+def parse_sizes(specs: list[str], scene) -> dict[str, float]:
+    """``["id=6.010", ...]`` -> {id: size}, each checked against the feature's limits."""
+    from geom.boundaries import SizeOutOfLimits, check_size
+
+    ids = [f.id for f in scene.features]
+    sizes: dict[str, float] = {}
+    for spec in specs:
+        fid, sep, val = spec.partition("=")
+        fid, val = fid.strip(), val.strip()
+        if not sep or not fid or not val:
+            raise UserError(f"--size {spec!r}: expected ID=VALUE, e.g. --size {ids[0]}={scene.features[0].mmc:g}")
+        if fid not in ids:
+            raise UserError(f"--size {spec!r}: no feature has the id {fid!r}; the scene's features are: "
+                            + ", ".join(ids))
+        try:
+            v = float(val)
+        except ValueError:
+            raise UserError(f"--size {spec!r}: expected a number after '=', got {val!r}") from None
+        if not math.isfinite(v):
+            raise UserError(f"--size {spec!r}: expected a finite number, got {val!r}")
+        if fid in sizes:
+            raise UserError(f"--size {spec!r}: the size of {fid!r} is given twice")
+        f = scene.feature(fid)
+        try:
+            check_size(f, v)
+        except SizeOutOfLimits:
+            u = scene.units
+            raise UserError(f"--size {spec!r}: {v:g} is outside the limits of {fid!r}, "
+                            f"{u.fmt(f.limits[0])} .. {u.fmt(f.limits[1])} {u.value}") from None
+        sizes[fid] = v
+    return sizes
+
+
+def run(args, load) -> int:
+    from geom.analysis import analyse_scene
+
+    scene = load(args.scene)
+    sizes = parse_sizes(list(args.size or []), scene)
+    from viewer.scene3d import VIEWS
+
+    if args.view not in VIEWS:
+        raise UserError(f"--view {args.view!r}: expected one of {', '.join(VIEWS)}")
+    out = Path(args.out)
+    if out.exists() and not out.is_dir():
+        raise UserError(f"--out {args.out!r}: exists and is not a folder")
+    try:
+        out.mkdir(parents=True, exist_ok=True)
+    except OSError as e:
+        raise UserError(f"--out {args.out!r}: cannot create the folder ({e.strerror})") from None
+    if not os.access(out, os.W_OK):
+        raise UserError(f"--out {args.out!r}: the folder is not writable")
+    from viewer.report import write_report
+
+    res = analyse_scene(scene)
+    written = write_report(res, out, sizes=sizes, view=args.view, progress=lambda s: print(s, flush=True))
+    print(f"wrote {len(written)} files to {out}")
+    return 0

@@ -1,0 +1,249 @@
+"""The 2D views, checked on the data of the artists they draw (mapped back to true units)."""
+
+import math
+import subprocess
+import sys
+from pathlib import Path
+
+import numpy as np
+import pytest
+import shapely
+from matplotlib.patches import Circle, PathPatch
+from shapely.geometry import Polygon
+
+from geom import analyse_scene, load, tolerance_allowed, virtual_condition
+from geom.boundaries import FeatureState
+from viewer import figures as F
+from viewer import style as S
+
+ROOT = Path(__file__).resolve().parent.parent
+SCENES = ROOT / "scenes"
+
+
+@pytest.fixture(scope="module")
+def bracket():
+    return analyse_scene(load(SCENES / "sensor_bracket_interference.toml"))
+
+
+@pytest.fixture(scope="module")
+def gearbox():
+    return analyse_scene(load(SCENES / "gearbox_endcap_dowel.toml"))
+
+
+@pytest.fixture(scope="module")
+def flange():
+    return analyse_scene(load(SCENES / "motor_flange_studs.toml"))
+
+
+def _by_gid(fig, gid):
+    return [a for ax in fig.axes for a in ax.findobj() if a.get_gid() == gid]
+
+
+def _texts(fig):
+    return " ".join(t.get_text() for t in fig.findobj(lambda a: hasattr(a, "get_text")))
+
+
+def _chord(d, segments):
+    """Polygon error: the section polygons straddle the true curve (geom.throughview), so a
+    radius is off by at most r (1 - cos(pi / n)) either way (geometry)."""
+    return d * (1 - math.cos(math.pi / segments))
+
+
+def _second_order(d, t, L):
+    """d (sec(theta) - 1), tan(theta) = t / L: the elliptical-section term (geom.throughview)."""
+    return d * (1 / math.cos(math.atan2(t, L)) - 1)
+
+
+def _opening_from_artist(fig, data):
+    """Independent computation: the shaded opening's vertices mapped back to true units, the
+    polygon rebuilt with shapely, and its largest inscribed circle found by shapely."""
+    (patch,) = _by_gid(fig, "opening")
+    path = patch.get_path()
+    true_xy = data.exaggeration.unmap_polar(path.vertices)
+    rings, cur = [], []
+    for xy, code in zip(true_xy, path.codes):
+        if code == path.MOVETO and cur:
+            rings.append(cur)
+            cur = []
+        if code != path.CLOSEPOLY:
+            cur.append(xy)
+    rings.append(cur)
+    poly = Polygon(rings[0], rings[1:])
+    line = shapely.maximum_inscribed_circle(poly, tolerance=1e-9)
+    (x0, y0), (x1, y1) = line.coords
+    return poly, 2 * math.hypot(x1 - x0, y1 - y0)
+
+
+@pytest.mark.parametrize("scene, subject", [("sensor_bracket_interference.toml", 0),
+                                            ("gearbox_endcap_dowel.toml", 0),
+                                            ("valve_body_guide_pin.toml", 0)])
+def test_shaded_opening_inscribed_circle_is_virtual_condition(scene, subject):
+    # ASME Y14.5-2018 virtual condition (from memory): a hole at MMC whose axis crosses its whole
+    # zone leaves a clear opening of VC = MMC - t, plus the exact second-order term
+    # d (sec(theta) - 1) of the elliptical sections documented in geom/throughview.py.
+    res = analyse_scene(load(SCENES / scene))
+    fig, data = F.through_view(res, subject)
+    hole = data.subject.hole
+    t = tolerance_allowed(hole, hole.mmc)
+    so = _second_order(hole.mmc, t, hole.length)
+    _, d_artist = _opening_from_artist(fig, data)
+    vc = virtual_condition(hole)
+    ch = _chord(hole.mmc, data.segments)
+    assert vc - ch <= d_artist <= vc + so + ch
+    # the drawn circle is the one computed beside the figure, mapped back to true units
+    (circle,) = _by_gid(fig, "inscribed")
+    assert isinstance(circle, Circle)
+    assert float(data.exaggeration.unradial(circle.radius)) * 2 == pytest.approx(data.hole.diameter, abs=1e-9)
+    assert data.hole.diameter == pytest.approx(d_artist, abs=ch)
+
+
+def test_opening_stays_at_virtual_condition_with_bonus(bracket):
+    # ASME Y14.5-2018 bonus at MMC (from memory): at a produced size d the tolerance allowed is
+    # t + (d - MMC), so the opening d - t_allowed stays at VC (plus the second-order term).
+    hole = bracket.scene.feature("bracket-hole")
+    st = FeatureState(6.010, 1.0, 0.0)
+    fig, data = F.through_view(bracket, 0, states={"bracket-hole": st})
+    t = tolerance_allowed(hole, 6.010)
+    assert t == pytest.approx(0.040)  # 0.030 + (6.010 - 6.000), from memory as above
+    _, d_artist = _opening_from_artist(fig, data)
+    assert d_artist == pytest.approx(5.970, abs=_second_order(6.010, t, 8.0) + _chord(6.010, data.segments))
+
+
+def test_pin_envelope_circle_is_pin_virtual_condition(bracket):
+    # ASME Y14.5-2018 (from memory): pin VC = MMC + t = 5.990 + 0.010 = 6.000, plus the same
+    # second-order term; the circle is read back from the drawn artist.
+    fig, data = F.through_view(bracket, 0)
+    (circle,) = _by_gid(fig, "pin-envelope")
+    d = 2 * float(data.exaggeration.unradial(circle.radius))
+    ch = _chord(5.990, data.segments)
+    assert 6.000 - ch <= d <= 6.000 + _second_order(5.990, 0.010, 8.0) + ch
+
+
+def test_interference_is_drawn_in_the_warning_colour(bracket, gearbox):
+    # sensor bracket: 5.970 - 6.000 = -0.030 (tests/test_scenes.py check values); the overlap
+    # region must exist, be red (viewer.style.INTERFERENCE) and its text give the true values.
+    fig, data = F.through_view(bracket, 0)
+    (ov,) = _by_gid(fig, "overlap")
+    assert isinstance(ov, PathPatch)
+    assert ov.get_facecolor()[:3] == pytest.approx(S.rgb(S.INTERFERENCE), abs=1e-6)
+    # independent: the drawn overlap mapped back equals shapely's pin hull minus the opening
+    assert data.overlap.area > 0
+    (txt,) = _by_gid(fig, "gap-text")
+    assert "OVERLAP 0.030" in txt.get_text() and "0.0150 per side" in txt.get_text()
+    assert data.clearance == pytest.approx(-0.030, abs=1e-9)
+    # gearbox end cap assembles: no overlap artist, clearance text instead
+    fig2, data2 = F.through_view(gearbox, 0)
+    assert _by_gid(fig2, "overlap") == []
+    (txt2,) = _by_gid(fig2, "gap-text")
+    assert txt2.get_text().startswith("clearance")
+    assert data2.clearance > 0
+
+
+def test_exaggeration_is_labelled_and_dimensions_are_true(bracket):
+    fig, data = F.through_view(bracket, 0)
+    text = _texts(fig)
+    assert f"radial deviations ×{data.exaggeration.k:g}" in text
+    assert data.exaggeration.k > 1
+    assert "⌀5.970" in text and "⌀6.000" in text  # true values, not the drawn ones
+
+
+def test_section_zone_width_is_tolerance_allowed(bracket):
+    # the zone of an axis is the tolerance allowed at the produced size: 0.030 at MMC and
+    # 0.030 + 0.006 at 6.006 (ASME Y14.5-2018 bonus, from memory)
+    for size, expect in ((6.000, 0.030), (6.006, 0.036)):
+        fig, data = F.section_view(bracket, 0, states={"bracket-hole": FeatureState(size)})
+        lines = _by_gid(fig, "bracket-hole-zone-limit")
+        assert len(lines) == 2
+        xs = sorted(float(ln.get_xdata()[0]) for ln in lines)
+        width = float(data.exaggeration.unlateral(xs[1] - xs[0]))
+        assert width == pytest.approx(expect, abs=1e-12)
+        assert f"⌀{expect:.3f}" in _texts(fig)
+
+
+def test_section_axis_tilt_and_boundaries(bracket):
+    # tilt: tan(theta) = t / L (an axis crossing its zone corner to corner, geometry);
+    # boundary lines at VC: hole 5.970, pin 6.000 (ASME Y14.5-2018, from memory)
+    fig, data = F.section_view(bracket, 0)
+    ex = data.exaggeration
+    (axis,) = _by_gid(fig, "bracket-hole-axis")
+    x, z = np.asarray(axis.get_xdata(), float), np.asarray(axis.get_ydata(), float)
+    slope = float(ex.unlateral(x[-1] - x[0])) / (z[-1] - z[0])
+    assert math.degrees(math.atan(slope)) == pytest.approx(math.degrees(math.atan2(0.030, 8.0)), abs=1e-9)
+    assert data.tilt_deg["bracket-hole"] == pytest.approx(math.degrees(math.atan2(0.030, 8.0)))
+    for fid, vc in (("bracket-hole", 5.970), ("locating-pin", 6.000)):
+        xs = sorted({round(float(ln.get_xdata()[0]), 12) for ln in _by_gid(fig, f"{fid}-boundary")})
+        assert len(xs) == 2
+        assert 2 * float(ex.unradial(xs[1])) == pytest.approx(vc, abs=1e-12)
+        assert xs[0] == pytest.approx(-xs[1])
+    # the wall-to-wall overlap per side is half the diametral interference (opposite tilts),
+    # to second order (the walls are d / (2 cos theta) from the axis)
+    assert data.gap_per_side == pytest.approx(-0.015, abs=1e-4)
+    assert _by_gid(fig, "overlap")
+
+
+@pytest.mark.parametrize("fid, t, bonus", [("bracket-hole", 0.030, 0.012), ("locating-pin", 0.010, 0.010)])
+def test_bonus_line_through_mmc_and_lmc(bracket, fid, t, bonus):
+    # ASME Y14.5-2018 (from memory): tolerance allowed = t at MMC, t + |LMC - MMC| at LMC; the
+    # VC line (size -/+ allowed) is constant.
+    f = bracket.scene.feature(fid)
+    fig, data = F.bonus_chart(bracket, 0)
+    (line,) = _by_gid(fig, f"{fid}-allowed")
+    x, y = np.asarray(line.get_xdata()), np.asarray(line.get_ydata())
+    order = np.argsort(x)
+    assert np.interp(f.mmc, x[order], y[order]) == pytest.approx(t, abs=1e-12)
+    assert np.interp(f.lmc, x[order], y[order]) == pytest.approx(t + bonus, abs=1e-12)
+    (vc_line,) = _by_gid(fig, f"{fid}-mating")
+    assert np.ptp(vc_line.get_ydata()) == pytest.approx(0.0, abs=1e-12)
+    assert vc_line.get_ydata()[0] == pytest.approx(virtual_condition(f), abs=1e-12)
+    (mark,) = _by_gid(fig, f"{fid}-produced")
+    assert mark.get_xdata()[0] == pytest.approx(f.mmc) and mark.get_ydata()[0] == pytest.approx(t)
+
+
+def test_bonus_lmc_and_rfs(flange):
+    # ASME Y14.5-2018 / ISO 2692 (from memory): at LMC the bonus grows toward MMC and the LMC
+    # virtual size (pin: LMC - t = 39.950 - 0.020 = 39.930) is the constant line; RFS: no bonus.
+    fig, data = F.bonus_chart(flange, 0)
+    pilot = flange.scene.feature("pilot")
+    (line,) = _by_gid(fig, "pilot-allowed")
+    x, y = np.asarray(line.get_xdata()), np.asarray(line.get_ydata())
+    assert np.interp(pilot.lmc, x, y) == pytest.approx(0.020, abs=1e-12)
+    assert np.interp(pilot.mmc, x, y) == pytest.approx(0.020 + 0.025, abs=1e-12)
+    (opp,) = _by_gid(fig, "pilot-opposite")
+    assert np.ptp(opp.get_ydata()) == pytest.approx(0.0, abs=1e-12)
+    assert opp.get_ydata()[0] == pytest.approx(39.930, abs=1e-9)
+    (rfs,) = _by_gid(fig, "adaptor-bore-allowed")
+    assert np.ptp(rfs.get_ydata()) == pytest.approx(0.0, abs=1e-12)
+    assert rfs.get_ydata()[0] == pytest.approx(0.015, abs=1e-12)
+
+
+def test_lone_projected_feature_views(flange):
+    # a feature in no mate draws alone; the projected zone (8.000 beyond A) is labelled and the
+    # through-view sections sit at the ends of the projected zone
+    fig, data = F.section_view(flange, "stud-hole")
+    assert data.placements["stud-hole"].zone_z == (-8.0, 0.0)
+    assert "projected zone 8.000 beyond A" in _texts(fig)
+    fig2, data2 = F.through_view(flange, "stud-hole")
+    assert data2.pin is None and data2.hole is not None
+    assert len(_by_gid(fig2, "hole-section-0")) == 1 and len(_by_gid(fig2, "hole-section-1")) == 1
+
+
+def test_every_view_of_every_scene_saves(tmp_path):
+    for p in sorted(SCENES.glob("*.toml")):
+        res = analyse_scene(load(p))
+        subjects = list(range(len(res.scene.mates))) + [f.id for f in res.scene.features]
+        for sub in subjects:
+            for name in F.VIEWS_2D:
+                fig, _ = F.draw_view(name, res, sub)
+                out = tmp_path / f"{p.stem}_{sub}_{name}.svg"
+                F.save_figure(fig, out)
+                assert out.stat().st_size > 1000
+
+
+def test_figures_need_no_gui_backend():
+    code = ("from geom import load, analyse_scene\nfrom viewer import figures as F\n"
+            "r = analyse_scene(load('scenes/sensor_bracket_interference.toml'))\n"
+            "[F.draw_view(n, r, 0) for n in F.VIEWS_2D]\nimport sys\n"
+            "print(sorted(m for m in sys.modules if m.split('.')[0] in ('PyQt5', 'pyvistaqt', 'tkinter')"
+            " or m == 'matplotlib.pyplot'))\n")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, check=True)
+    assert out.stdout.strip() == "[]"

@@ -1,0 +1,147 @@
+"""`matezone report`: files written headless, the PDF's numbers, results.json, bad input."""
+
+import contextlib
+import io
+import json
+import re
+from pathlib import Path
+
+import matplotlib.image as mpimg
+import pytest
+from pypdf import PdfReader
+
+from geom import analyse_scene, load, result_to_json
+from geom.readout import CAUTION
+from matezone.cli import main
+
+ROOT = Path(__file__).resolve().parent.parent
+SCENES = sorted((ROOT / "scenes").glob("*.toml"))
+BRACKET = ROOT / "scenes" / "sensor_bracket_interference.toml"
+
+
+def _run(*argv):
+    out, err = io.StringIO(), io.StringIO()
+    with contextlib.redirect_stdout(out), contextlib.redirect_stderr(err):
+        code = main(list(argv))
+    return code, out.getvalue(), err.getvalue()
+
+
+def _pdf_text(path):
+    return "\n".join(p.extract_text() for p in PdfReader(str(path)).pages)
+
+
+def _squash(s):
+    return re.sub(r"\s+", "", s)
+
+
+@pytest.fixture(scope="module")
+def bracket_report(tmp_path_factory):
+    out = tmp_path_factory.mktemp("rep")
+    code, stdout, stderr = _run("report", str(BRACKET), "--out", str(out))
+    assert code == 0, stderr
+    return out, stdout
+
+
+def test_report_writes_every_file(bracket_report):
+    out, stdout = bracket_report
+    key = "mate_bracket-hole__locating-pin"
+    png3d = out / f"{key}_3d_iso.png"
+    img = mpimg.imread(png3d)
+    assert img.shape[1] >= 1600 and img.shape[0] >= 1200
+    for view in ("through", "section", "bonus"):
+        img = mpimg.imread(out / f"{key}_{view}.png")
+        assert img.shape[1] >= 1600 and img.shape[0] >= 1200
+        svg = (out / f"{key}_{view}.svg").read_text(encoding="utf-8")
+        assert svg.lstrip().startswith("<?xml") and "<svg" in svg
+        assert (out / f"{key}_{view}.pdf").read_bytes().startswith(b"%PDF")
+    assert (out / "report.pdf").exists()
+    # one progress line per step, numbered
+    steps = [ln for ln in stdout.splitlines() if ln.startswith("[")]
+    assert len(steps) == 6
+    assert all(re.match(rf"\[{i}/6\] .+ -> ", ln) for i, ln in enumerate(steps, 1))
+    assert "3D view -> " in steps[0] and str(png3d) in steps[0]
+
+
+def test_results_json_equals_analyze_json(bracket_report):
+    out, _ = bracket_report
+    expect = result_to_json(analyse_scene(load(BRACKET)))
+    expect["caution"] = CAUTION
+    got = json.loads((out / "results.json").read_text(encoding="utf-8"))
+    assert got == json.loads(json.dumps(expect))
+    # and the same as `matezone analyze --json` prints
+    code, stdout, _ = _run("analyze", str(BRACKET), "--json")
+    assert code == 0 and json.loads(stdout) == got
+
+
+def test_pdf_carries_the_computed_numbers(bracket_report):
+    out, _ = bracket_report
+    reader = PdfReader(str(out / "report.pdf"))
+    assert len(reader.pages) == 1  # one mate, no lone feature
+    text = _pdf_text(out / "report.pdf")
+    # check values: hole VC 6.000 - 0.030 = 5.970, pin VC 5.990 + 0.010 = 6.000, clearance
+    # -0.030 (ASME Y14.5-2018 from memory; tests/test_scenes.py), sizes-alone +0.010
+    for s in ("5.970", "6.000", "-0.030", "+0.010", "6.054", "0.012", "INTERFERES by 0.030 mm",
+              "VC = MMC - t = 6.000 - 0.030 = 5.970"):
+        assert s in text, s
+    # the title block from the scene's [report] table
+    for s in ("NCR-2026-0117", "SB-3-002", "L26-1187", "R. Ferreira", "2026-12-02", "D3"):
+        assert s in text, s
+    for d in ("use-as-is", "rework", "repair", "scrap", "return to supplier"):
+        assert d in text
+    assert _squash(CAUTION) in _squash(text)
+    meta = reader.metadata
+    assert "Sensor bracket" in meta.title
+
+
+def test_what_if_size_changes_pictures_not_numbers(tmp_path):
+    # bonus at MMC (ASME Y14.5-2018, from memory): at 6.010 the hole is allowed 0.040; the
+    # clearance at these states stays 5.970 - 6.000 = -0.030 (VC is constant)
+    code, _, err = _run("report", str(BRACKET), "--out", str(tmp_path), "--size", "bracket-hole=6.010",
+                        "--view", "top")
+    assert code == 0, err
+    text = _pdf_text(tmp_path / "report.pdf")
+    assert "What-if" in text and "6.010" in text and "0.040" in text
+    assert (tmp_path / "mate_bracket-hole__locating-pin_3d_top.png").exists()
+    # the worst-case table is unchanged
+    assert "VC = MMC - t = 6.000 - 0.030 = 5.970" in text
+
+
+@pytest.mark.parametrize("argv, needle", [
+    (["--size", "nosuch=6.0"], "no feature has the id 'nosuch'"),
+    (["--size", "bracket-hole=6.5"], "outside the limits of 'bracket-hole', 6.000 .. 6.012 mm"),
+    (["--size", "bracket-hole"], "expected ID=VALUE"),
+    (["--size", "bracket-hole=abc"], "expected a number"),
+    (["--size", "bracket-hole=6.001", "--size", "bracket-hole=6.002"], "given twice"),
+    (["--view", "sideways"], "expected one of iso, top, section"),
+])
+def test_bad_input_exits_2_with_one_message(tmp_path, argv, needle):
+    out = tmp_path / "o"
+    code, stdout, err = _run("report", str(BRACKET), "--out", str(out), *argv)
+    assert code == 2
+    assert needle in err
+    assert len(err.strip().splitlines()) == 1 and "Traceback" not in err
+    assert not (out / "report.pdf").exists()
+
+
+def test_bad_scene_exits_2(tmp_path):
+    bad = tmp_path / "bad.toml"
+    bad.write_text('units = "mm"\n[[feature]]\nid = "h"\nkind = "hole"\nlimits = [6, 5]\nlength = 8\n')
+    code, _, err = _run("report", str(bad), "--out", str(tmp_path / "o"))
+    assert code == 2 and "limits" in err
+
+
+@pytest.mark.parametrize("scene", SCENES, ids=[s.name for s in SCENES])
+def test_every_demo_scene_produces_its_report(scene, tmp_path):
+    code, stdout, err = _run("report", str(scene), "--out", str(tmp_path))
+    assert code == 0, err
+    sc = load(scene)
+    mated = {m.hole for m in sc.mates} | {m.pin for m in sc.mates}
+    pages = len(sc.mates) + len([f for f in sc.features if f.id not in mated])
+    assert len(PdfReader(str(tmp_path / "report.pdf")).pages) == pages
+    assert len(list(tmp_path.glob("*_3d_iso.png"))) == pages
+    assert len(list(tmp_path.glob("*.svg"))) == 3 * pages
+    text = _squash(_pdf_text(tmp_path / "report.pdf"))
+    assert _squash(CAUTION) in text
+    res = analyse_scene(sc)
+    for m in res.mates:  # each mate's worst-case clearance, as analysed, is on its page
+        assert sc.units.fmt(m.clearance_min, signed=True) in text
