@@ -8,6 +8,7 @@ Updates are coalesced: a burst of slider moves costs one rebuild per event-loop 
 from __future__ import annotations
 
 import time
+from dataclasses import replace
 
 from PyQt5.QtCore import QTimer, pyqtSignal
 from PyQt5.QtWidgets import (
@@ -33,7 +34,8 @@ LAYER_NAMES = {
     "readouts": "Numbers on the picture",
     "legend": "Colour legend",
 }
-HIDDEN_IN_WINDOW = {"readouts"}  # the window's readout table shows these numbers already
+HIDDEN_IN_WINDOW = {"readouts"}
+MESHLESS = {"labels", "readouts", "legend"}  # layers add_to_plotter draws as text, not meshes  # the window's readout table shows these numbers already
 VIEW_NAMES = {"iso": "Iso", "top": "Top (through A)", "section": "Section"}
 
 
@@ -132,7 +134,8 @@ class View3D(QWidget):
         self._focus_key = self.model.focus
         self.current = sc3
         self.caption.setText(sc3.caption)
-        self._readd()
+        if first or not self._update_in_place():
+            self._readd()
         if first:
             self.set_view(self.current_view, render=False)
         self.plotter.render()
@@ -143,6 +146,40 @@ class View3D(QWidget):
         if self.current_view == "section":
             return self.scene3d_mod.section_cut(self.current)
         return self.current
+
+    def _signature(self, shown) -> tuple:
+        return (tuple((n, tuple(it.name for it in items)) for n, items in shown.layers.items()),
+                frozenset(self.visible), self.current_view == "section")
+
+    def _update_in_place(self) -> bool:
+        """Same focus, same layers, same meshes by name: hand the new meshes to the existing
+        actors (no new actors, no new mappers) and re-add only the text. False if the
+        structure changed and a full re-add is needed."""
+        shown = self._shown()
+        if self._signature(shown) != getattr(self, "_sig", None):
+            return False
+        p = self.plotter
+        for name, items in shown.layers.items():
+            if name not in self.visible or name in MESHLESS:
+                continue
+            actors = self.actors.get(name, [])
+            if len(actors) < len(items):
+                return False
+            for a, it in zip(actors, items):
+                a.mapper.SetInputData(it.mesh)
+                clim = it.style.get("clim")
+                if clim is not None:
+                    a.mapper.scalar_range = tuple(clim)
+        for layer in MESHLESS - {"legend"}:
+            for a in self.actors.get(layer, []):
+                p.remove_actor(a, render=False)
+            self.actors[layer] = []
+        text_only = replace(shown, layers={})
+        added = self.scene3d_mod.add_to_plotter(p, text_only, set(self.visible) - {"legend"}) or {}
+        for layer in MESHLESS - {"legend"}:
+            self.actors[layer] = [a for a in added.get(layer, []) if a is not None]
+        self._update_legend(shown)
+        return True
 
     def _readd(self) -> None:
         p = self.plotter
@@ -158,6 +195,11 @@ class View3D(QWidget):
         self.actors = {k: [a for a in v if a is not None] for k, v in added.items()}
         # the legend box is unreadably small in a window-sized view: the same rows are shown as
         # Qt text under the view; the clearance colour bar stays in the picture
+        self._sig = self._signature(shown)
+        self._update_legend(shown)
+
+    def _update_legend(self, shown) -> None:
+        p = self.plotter
         bars = {id(b) for b in p.scalar_bars.values()}
         for a in self.actors.get("legend", []):
             if id(a) not in bars:
