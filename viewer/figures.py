@@ -322,7 +322,12 @@ def _footer(fig, ax, own, text_lines, fs):
         fig.text(0.03, 0.025, "\n".join(text_lines), fontsize=fs * 0.85, color=S.TEXT, va="bottom", ha="left",
                  gid="footer")
     else:
-        ax.text(0.0, -0.01, "\n".join(text_lines), transform=ax.transAxes, fontsize=fs * 0.85, va="top",
+        import textwrap
+
+        w_pt = ax.get_position(original=True).width * fig.get_figwidth() * 72.0
+        chars = max(30, int(w_pt / (fs * 0.85 * 0.52)))
+        lines = [w for ln in text_lines for w in textwrap.wrap(ln, chars)]
+        ax.text(0.0, -0.01, "\n".join(lines), transform=ax.transAxes, fontsize=fs * 0.85, va="top",
                 ha="left", color=S.TEXT, gid="footer")
 
 
@@ -531,7 +536,7 @@ def _draw_through(ax, res: SceneResult, d: ThroughData, fs: float):
         a_, b_ = p0 * ri, p0 * ro
         ax.annotate("", xy=b_, xytext=a_, arrowprops=dict(arrowstyle="<|-|>", color=S.TEXT, lw=1.1, shrinkA=0,
                                                           shrinkB=0, mutation_scale=8), gid="gap-dim", zorder=9)
-        per, dia = _half(u, d.gap_per_side), u.fmt(abs(d.clearance))
+        per, dia = _half(u, d.clearance / 2), u.fmt(abs(d.clearance))
         if interferes:
             txt = f"OVERLAP {dia} on ⌀\n({per} per side):\nthe pin does not fit"
         elif abs(d.clearance) <= 1e-9:
@@ -711,8 +716,9 @@ def _draw_section(ax, res: SceneResult, d: SectionData, fs: float):
     ylo = min(zmin, -plate) - step * (0.9 + len(bot_dims))
     yhi = ztop + step * (0.9 + len(top_dims))
     # drawing in the middle of the axes; texts in columns left and right
-    W = max(2 * xr / 0.5, (yhi - ylo) * _box_ratio(ax))
-    _fit_limits(ax, -xr - 0.24 * W, -xr + 0.76 * W, ylo, yhi, anchor=(0.5, 0.5))
+    dfrac = 0.5 if _box_ratio(ax) < 1.65 else 0.4  # narrower drawing in a wide report slot
+    W = max(2 * xr / dfrac, (yhi - ylo) * _box_ratio(ax))
+    _fit_limits(ax, -xr - 0.22 * W, -xr + 0.78 * W, ylo, yhi, anchor=(0.5, 0.5))
     shapes = {}
     legend = []
     # ---------------------------------------------------------------- parts: hole material, pin, plate
@@ -859,7 +865,7 @@ def _draw_section(ax, res: SceneResult, d: SectionData, fs: float):
         ax.annotate("", xy=(xp, zdim), xytext=(xh, zdim),
                     arrowprops=dict(arrowstyle="<|-|>", color=S.TEXT, lw=1.1, shrinkA=0, shrinkB=0, mutation_scale=7),
                     gid="gap-dim", zorder=10)
-        per, dia = _half(un, d.gap_per_side), un.fmt(abs(d.clearance))
+        per, dia = _half(un, d.clearance / 2), un.fmt(abs(d.clearance))
         if interferes:
             txt = f"OVERLAP {dia} on ⌀\n({per} per side):\nthe pin hits the wall"
         elif abs(d.clearance) <= 1e-9:

@@ -279,11 +279,11 @@ def build_page(res: SceneResult, item: Item, states, image3d: np.ndarray | None,
         p.text(x0 + 0.1, y + 0.15, mark + verdict, fontsize=10, weight="bold", color=col, va="center")
         y += 0.36
         # ---------------------------------------------------------------- images, 2 x 2
-        gw, gh, gap = (W - 0.15) / 2, 2.2, 0.1
+        gw, gh, gap = (W - 0.15) / 2, 2.0, 0.1
         slots = [(x0, y), (x0 + gw + 0.15, y), (x0, y + gh + gap), (x0 + gw + 0.15, y + gh + gap)]
         fs2 = 5.4
         # 3D
-        ax = fig.add_axes(p.rect(slots[0][0], slots[0][1] + 0.14, gw, gh - 0.14))
+        ax = fig.add_axes(p.rect(slots[0][0], slots[0][1] + 0.14, gw, gh - 0.42))
         ax.set_axis_off()
         if image3d is not None:
             ax.imshow(image3d, interpolation="antialiased")
@@ -313,10 +313,10 @@ def build_page(res: SceneResult, item: Item, states, image3d: np.ndarray | None,
         p.text(x0, y, "\n".join(body), fontsize=6.1, linespacing=1.2, gid="effect")
         y += 0.102 * len(body) + 0.08
         # ---------------------------------------------------------------- disposition and signatures
-        _disposition(p, x0, y, W)
+        _disposition(p, x0, max(y, PAGE[1] - 1.12), W)
         # ---------------------------------------------------------------- caution
-        p.line(x0, PAGE[1] - 0.5, x0 + W, PAGE[1] - 0.5, lw=0.5)
-        p.text(x0, PAGE[1] - 0.46, "\n".join(textwrap.wrap("CAUTION: " + CAUTION, 160)), fontsize=6.2,
+        p.line(x0, PAGE[1] - 0.44, x0 + W, PAGE[1] - 0.44, lw=0.5)
+        p.text(x0, PAGE[1] - 0.41, "\n".join(textwrap.wrap("CAUTION: " + CAUTION, 160)), fontsize=6.2,
                style="italic", gid="caution")
     return fig
 
@@ -348,13 +348,14 @@ def _numbers(p: _Page, res: SceneResult, item: Item, x0: float, y: float, W: flo
         p.line(x, y + 0.1 * len(head_lines) + 0.01, x + colw - 0.1, y + 0.1 * len(head_lines) + 0.01, lw=0.5)
         yy = y + 0.1 * len(head_lines) + 0.04
         for i, (qty, val, formula) in enumerate(feature_rows(r, u, std)):
-            if i % 2 == 0:
-                p.box(x, yy - 0.012, colw - 0.1, rowh, lw=0, fill=True, fc="#EEF0F2", ec="none")
             first = formula.split(" = ", 1)[0].split(":", 1)[0]
             shown = formula if first in abbr else f"{qty}: {formula}"
+            wrapped = textwrap.wrap(shown, int((colw - 0.8) * 72 / (fs * 0.53)), subsequent_indent="   ")
+            if i % 2 == 0:
+                p.box(x, yy - 0.012, colw - 0.1, rowh * len(wrapped), lw=0, fill=True, fc="#EEF0F2", ec="none")
             p.text(x + 0.6, yy, val, fontsize=fs, ha="right", family="DejaVu Sans Mono", weight="bold")
-            p.text(x + 0.68, yy, shown, fontsize=fs)
-            yy += rowh
+            p.text(x + 0.68, yy, "\n".join(wrapped), fontsize=fs, linespacing=1.2)
+            yy += rowh * len(wrapped)
         ymax = max(ymax, yy)
     y = ymax + 0.04
     if item.subject.is_mate:
@@ -377,7 +378,7 @@ def _disposition(p: _Page, x0: float, y: float, W: float) -> None:
         p.box(x, y - 0.005, 0.11, 0.11, lw=0.8)
         p.text(x + 0.16, y, d, fontsize=7)
         x += 0.3 + 0.062 * len(d)
-    y += 0.3
+    y += 0.26
     for i, who in enumerate(("engineering", "quality", "customer / supplier (if required)")):
         xs = x0 + i * (W / 3)
         p.line(xs, y + 0.12, xs + W / 3 - 0.25, y + 0.12, lw=0.6)
