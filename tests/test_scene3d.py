@@ -15,7 +15,7 @@ from geom.boundaries import FeatureState
 from viewer import style as S
 from viewer.scene3d import (
     HIDDEN_BY_DEFAULT, LAYERS, N_PHI, N_PHI_CAGE, VIEWS, Scene3D, add_to_plotter, auto_exaggeration,
-    build_feature_scene, build_mate_scene, render_image, section_cut,
+    build_feature_scene, build_inspection_scene, build_mate_scene, render_image, section_cut,
 )
 
 pv = pytest.importorskip("pyvista")
@@ -295,6 +295,17 @@ def test_every_scene_builds_and_renders(path):
     res = geom.analyse_scene(geom.load(path))
     built: list[Scene3D] = [build_mate_scene(res, i) for i in range(len(res.scene.mates))]
     built += [build_feature_scene(res, f.id) for f in res.scene.features]
+    # a scene with measured points: every such feature also builds its inspection view
+    # (independent: the InspectionResult computed by geom.inspect from the scan file)
+    from geom.inspect import inspect_feature
+
+    for f in res.scene.features:
+        if f.measured is not None and f.measured.points is not None:
+            insp = inspect_feature(res.scene, f.id)
+            sc3 = build_inspection_scene(res, insp)
+            assert sc3.find("points", "measured points").mesh.n_points == len(insp.points)
+            assert len(sc3.verdicts) == 3
+            built.append(sc3)
     for sc3 in built:
         assert sc3.exaggeration >= 1.0
         assert set(sc3.cameras) == set(VIEWS)

@@ -1,6 +1,8 @@
 """The 3D scene: a geom result plus a what-if state in, named meshes out; headless rendering.
 
-Pure builders (no Qt): :func:`build_mate_scene` and :func:`build_feature_scene` return a frozen
+Pure builders (no Qt): :func:`build_mate_scene`, :func:`build_feature_scene` and
+:func:`build_inspection_scene` (a measured feature: points coloured by radial deviation, median
+line, actual mating envelopes, zone at the tolerance allowed, virtual condition) return a frozen
 :class:`Scene3D` of layers of PyVista meshes with their ``add_mesh`` styles, 3D labels, the
 readouts printed on the picture, a legend and three cameras. :func:`add_to_plotter` puts a scene
 into any ``pyvista.Plotter`` (the Qt window's ``QtInteractor`` is one); :func:`render_image`
@@ -51,6 +53,9 @@ LAYERS = (
     "mate",  # the mating pin (or hole) at its own worst case, coloured by clearance
     "clearance",  # the tightest spot(s) and the gap there
     "projected",  # projected tolerance zone region: axis extension, mating part, fastener
+    "points",  # measured points, coloured by radial deviation (inspection scenes)
+    "median_line",  # derived median line: section centres, as a polyline with its points
+    "envelopes",  # unrelated and related actual mating envelopes of the measured feature
     "labels",  # 3D text labels
     "readouts",  # numbers on the picture and the exaggeration caption
     "legend",  # colour legend and the clearance scalar bar
@@ -110,11 +115,12 @@ class Scene3D:
     legend_layers: tuple[str, ...] = ()  # layer each legend row belongs to
     parallel_scale: dict[str, float] = field(default_factory=dict)  # views drawn in parallel projection
     section: tuple[tuple[float, float, float], tuple[float, float, float]] = ((0, 0, 0), (0, 1, 0))  # origin, normal
-    kind: str = "mate"  # "mate" or "feature"
+    kind: str = "mate"  # "mate", "feature" or "inspection"
     feature_ids: tuple[str, ...] = ()
     states: dict[str, FeatureState] = field(default_factory=dict)
     notes: tuple[str, ...] = ()
     window_centre: tuple[float, float] = (0.26, 0.27)  # camera window centre: picture shifted left/down
+    verdicts: tuple[tuple[str, str], ...] = ()  # (text, colour): verdict lines drawn under the readouts
 
     def meshes(self, layer: str) -> tuple[pv.PolyData, ...]:
         return tuple(item.mesh for item in self.layers.get(layer, ()))
@@ -921,11 +927,372 @@ def build_feature_scene(res: SceneResult, feature_id: str, state: FeatureState |
                    {f.id: st}, clearance=clearance, tightest=tight, bar=bar)
 
 
+# --------------------------------------------------------------------------- inspection
+
+
+def _word(check) -> tuple[str, str]:
+    """(word, colour) for an inspection verdict: conforms / fails / not proven (ISO 14253-1
+    outcome when an uncertainty was given, else the measured values alone)."""
+    out = check.outcome
+    if check.conforms is None or out.startswith("not evaluated"):
+        return "NOT EVALUATED", S.NOT_PROVEN
+    if out.startswith("not proven"):
+        return "NOT PROVEN", S.NOT_PROVEN
+    if out.startswith("nonconformance") or out.startswith("does not") or not check.conforms:
+        return "FAILS", S.INTERFERENCE
+    return "CONFORMS", S.OK
+
+
+def _latin(text: str) -> str:
+    """Characters VTK's fonts draw: the diameter sign as the Latin-1 O-slash."""
+    return (text.replace("\u2300", "\u00d8").replace("\u2264", "<=").replace("\u2265", ">=")
+            .replace("\u2212", "-").replace("\u00a7", "sec. "))
+
+
+def _frame(d) -> tuple[np.ndarray, np.ndarray]:
+    """Unit vectors e1, e2 normal to the unit direction d (e1 from +x, as :func:`_rings`)."""
+    ref = np.array([1.0, 0.0, 0.0])
+    e1 = ref - (ref @ d) * d
+    e1 /= np.linalg.norm(e1)
+    return e1, np.cross(d, e1)
+
+
+def _drawn_direction(ex: _Ex, d) -> np.ndarray:
+    q = np.array([ex.k * d[0], ex.k * d[1], d[2]], dtype=float)
+    return q / np.linalg.norm(q)
+
+
+def _draw_points(ex: _Ex, P: np.ndarray, p0, d) -> np.ndarray:
+    """Measured points drawn with the radial exaggeration about the axis (p0, unit d) they were
+    fitted to (the least-squares cylinder's): each point's foot on that axis is drawn as the
+    axis is (lateral offsets x k), its distance rho from the axis as R0 + k (rho - R0), its angle
+    round the axis kept. So the drawn distance from the drawn axis exceeds the drawn cylinder's
+    radius by exactly k x the radial deviation. k = 1 returns the points themselves."""
+    p0 = np.asarray(p0, float)
+    d = np.asarray(d, float)
+    w = P - p0
+    s = w @ d
+    radial = w - s[:, None] * d
+    rho = np.linalg.norm(radial, axis=1)
+    e1, e2 = _frame(d)
+    c, sn = radial @ e1, radial @ e2
+    if ex.k == 1.0:
+        return np.array(P, dtype=float, copy=True)
+    foot = ex.pts(p0 + s[:, None] * d)
+    dd = _drawn_direction(ex, d)
+    f1, f2 = _frame(dd)
+    scale = (ex.R0 + ex.k * (rho - ex.R0)) / np.where(rho > 0, rho, 1.0)
+    return foot + (scale * c)[:, None] * f1 + (scale * sn)[:, None] * f2
+
+
+def _env_axis(env, z: np.ndarray) -> np.ndarray:
+    return np.array([[*env.at_z(float(t)), float(t)] for t in z])
+
+
+def _dashed_cage(axis: np.ndarray, radius: float, n_rings: int = 3, n_gen: int = 8, dashes: int = 12,
+                 n_phi: int = N_PHI_CAGE, phase: float = 0.0) -> pv.PolyData:
+    """Dashed wireframe of the right circular cylinder of ``radius`` about the straight axis
+    (2, 3) (end points at increasing z): rings cut by planes parallel to A (as :func:`_rings`)
+    and generator lines, every other dash left out."""
+    zs = np.linspace(axis[0, 2], axis[1, 2], max(n_rings, 2))
+    rings = _rings(_axis_at(axis, zs), radius, n_phi)
+    pts, lines = [], []
+    per = max(2, n_phi // (2 * dashes))
+    for ring in rings:
+        for j0 in range(0, n_phi, 2 * per):
+            idx = [(j0 + j) % n_phi for j in range(per + 1)]
+            base = len(pts)
+            pts += [ring[i] for i in idx]
+            lines.append([len(idx), *range(base, base + len(idx))])
+    gz = np.linspace(axis[0, 2], axis[1, 2], 2 * dashes + 1)
+    gen = _rings(_axis_at(axis, gz), radius, n_gen * 4)[:, ::4]  # n_gen generators
+    if phase:
+        gen = np.roll(gen, int(round(phase / (2 * np.pi) * n_gen)), axis=1)
+    for g in range(gen.shape[1]):
+        for i in range(0, len(gz) - 1, 2):
+            base = len(pts)
+            pts += [gen[i, g], gen[i + 1, g]]
+            lines.append([2, base, base + 1])
+    return pv.PolyData(np.array(pts), lines=np.concatenate(lines))
+
+
+def _zone_placement(f: Feature, insp) -> tuple[np.ndarray | None, str]:
+    """Axis (2, 3) of the tolerance zone (end points in the zone's z range) and where it is:
+    at the true position for position; floating for orientation and straightness, placed where
+    the axis reading put it (the smallest zone holding the points the reading was taken on)."""
+    from geom import fitting as F
+
+    tol = f.tolerance
+    zz = (-tol.projected, 0.0) if tol.projected else (0.0, f.length)
+    at = np.array(f.at, float)
+    line = None if insp.axis is None or not len(insp.axis.line) else np.asarray(insp.axis.line, float)
+    if tol.characteristic is Characteristic.POSITION or line is None:
+        where = "at the true position" if tol.characteristic is Characteristic.POSITION else \
+            "floating; drawn at the basic location (no median line)"
+        return np.array([[*at, zz[0]], [*at, zz[1]]]), where
+    if tol.characteristic is Characteristic.STRAIGHTNESS and tol.zone is Zone.DIAMETER and len(line) >= 3:
+        z0 = float(line[:, 2].mean())
+        A = np.c_[np.ones(len(line)), line[:, 2] - z0]
+        (a, u), *_ = np.linalg.lstsq(A, line[:, 0], rcond=None)
+        (b, v), *_ = np.linalg.lstsq(A, line[:, 1], rcond=None)
+        x, _ = F.minimax_cylinder(line, np.array([a, b, u, v]), z0, inscribed=False)
+        ends = np.c_[F.axis_point(x, z0, np.array(zz)), zz]
+        return ends, "floating in any orientation, about the smallest cylinder holding the section centres"
+    if tol.zone is Zone.WIDTH:
+        cx = 0.5 * (line[:, 0].min() + line[:, 0].max())
+        cy = float(line[:, 1].mean())
+        what = "normal to A" if tol.characteristic is not Characteristic.STRAIGHTNESS else "normal to A (drawn)"
+        return np.array([[cx, cy, zz[0]], [cx, cy, zz[1]]]), f"floating, {what}, centred on the median line's x range"
+    cx, cy, _ = F.circumscribed_circle(line[:, :2]) if len(line) >= 2 else (*line[0, :2], 0.0)
+    return (np.array([[cx, cy, zz[0]], [cx, cy, zz[1]]]),
+            "floating, normal to A, centred on the smallest circle holding the median line seen along the axis")
+
+
+def _inspection_exaggeration(res: SceneResult, insp) -> float:
+    """The feature's usual exaggeration (:func:`auto_exaggeration`), lowered (to a round number)
+    if the measured part departs so far that a drawn point, envelope or median-line offset would
+    move more than half the reference radius."""
+    f = insp.feature
+    k = auto_exaggeration(res, feature_id=f.id)
+    R0 = f.mmc / 2.0
+    c = np.array(f.at, float)
+    far = []
+    if insp.points is not None and len(insp.points):
+        far.append(float(np.abs(np.hypot(*(insp.points[:, :2] - c).T) - R0).max()))
+    for e in (insp.unrelated, insp.related):
+        if e is not None:
+            off = max(math.hypot(*(np.array(e.at_z(z)) - c)) for z in (0.0, f.length))
+            far.append(abs(e.diameter / 2 - R0) + off)
+    if insp.median_line is not None and len(insp.median_line):
+        far.append(float(np.hypot(*(insp.median_line[:, :2] - c).T).max()))
+    if insp.tolerance_allowed is not None:
+        far.append(insp.tolerance_allowed)
+    if insp.virtual_condition is not None:
+        far.append(abs(insp.virtual_condition / 2 - R0))
+    m = max(far, default=0.0)
+    if m > 0 and k * m > 0.5 * R0:
+        k = _nice_floor(0.5 * R0 / m)
+    return k
+
+
+def build_inspection_scene(res: SceneResult, insp, exaggeration: float | None = None) -> Scene3D:
+    """A measured feature in 3D, in the datum frame with datum A (z = 0).
+
+    ``insp`` is the :class:`geom.inspect.InspectionResult` of one feature of ``res.scene``.
+    Layers: "points" (the measured points, scalars ``radial_deviation``: their true distance from
+    the least-squares cylinder, + outward, shown with a diverging colour map symmetric about 0
+    and a scalar bar), "median_line" (the section centres as a polyline with its points, and for
+    a projected zone the line the reading was taken on), "envelopes" (the unrelated actual
+    mating envelope as a translucent surface, the related one as a dashed wireframe), "zone"
+    (the tolerance zone at the tolerance allowed: t + the bonus earned; at the true position for
+    position, floating where the axis reading places it for orientation), "zone_axis", "vc"
+    (the virtual-condition boundary, coaxial with the related envelope: the gauge pin that must
+    enter), "datum"; readouts with the numbers and the three verdicts in their colours.
+
+    The radial exaggeration k works as in the rest of the module: radii r are drawn as
+    R0 + k (r - R0) about R0 = MMC / 2, lateral offsets of axes and centres x k, lengths along
+    the axis true; a point's radial deviation is drawn x k about the drawn least-squares axis.
+    ``exaggeration=None`` picks k (:func:`_inspection_exaggeration`); 1.0 draws true geometry.
+    Scalars, readouts and verdicts are always the true values of ``insp``.
+    """
+    sc = res.scene
+    f = insp.feature
+    u, std = sc.units, sc.standard
+    tol = f.tolerance
+    k = float(exaggeration) if exaggeration is not None else _inspection_exaggeration(res, insp)
+    if not (k > 0 and math.isfinite(k)):
+        raise ValueError(f"exaggeration must be a positive number, got {exaggeration!r}")
+    centre = f.at
+    ex = _Ex(k, centre, f.mmc / 2.0)
+    b = _Built()
+    hole = f.kind is Kind.HOLE
+    z0, z1 = 0.0, f.length
+    fmt = u.fmt
+    ls_cyl = insp.least_squares.cylinder if insp.least_squares is not None else None
+
+    # the tilt plane of the pictures: towards the median line's largest departure from the zone axis
+    zone_axis, zone_where = (None, "")
+    if tol is not None and insp.tolerance_allowed is not None:
+        zone_axis, zone_where = _zone_placement(f, insp)
+    direction_deg = 0.0
+    line = insp.median_line
+    if line is not None and len(line):
+        ref = zone_axis[0, :2] if zone_axis is not None else np.array(centre, float)
+        if zone_axis is not None and zone_axis[0, 2] != zone_axis[1, 2]:
+            ref = _axis_at(zone_axis, line[:, 2])[:, :2]
+        off = line[:, :2] - ref
+        i = int(np.argmax(np.hypot(off[:, 0], off[:, 1])))
+        if np.hypot(*off[i]) > 1e-12:
+            direction_deg = math.degrees(math.atan2(off[i, 1], off[i, 0]))
+    phi = math.radians(direction_deg)
+    v = np.array([-math.sin(phi), math.cos(phi), 0.0])  # normal to the cut plane, towards the half it keeps
+
+    def side(angle_deg: float) -> np.ndarray:
+        """Unit vector on A at ``angle_deg`` from the tilt direction towards the kept half: label
+        anchors on the walls near the cut plane, apart from each other in the top view."""
+        a = phi + math.radians(angle_deg)
+        return np.array([math.cos(a), math.sin(a), 0.0])
+
+    # measured points, coloured by their true radial deviation
+    bar = None
+    if insp.points is not None and len(insp.points):
+        P = np.asarray(insp.points, float)
+        if ls_cyl is not None:
+            drawn = _draw_points(ex, P, ls_cyl.point, ls_cyl.direction)
+        else:  # no fitted cylinder: exaggerate about the basic location, normal to A
+            drawn = _draw_points(ex, P, (*centre, 0.0), (0.0, 0.0, 1.0))
+        mesh = pv.PolyData(drawn)
+        dev = np.asarray(insp.radial_deviation, float)
+        mesh.point_data["radial_deviation"] = dev
+        mesh.set_active_scalars("radial_deviation")
+        m = float(np.abs(dev).max()) or 10.0 ** -(u.decimals + 1)
+        title = f"radial deviation, {u.value}"
+        style = dict(scalars="radial_deviation", cmap=S.deviation_colormap(), clim=(-m, m), point_size=7,
+                     render_points_as_spheres=True, ambient=0.35, diffuse=0.75, specular=0.0,
+                     show_scalar_bar=False, interpolate_before_map=True)
+        b.add("points", "measured points", mesh, style)
+        bar = dict(title=title, clim=(-m, m), fmt=f"%+.{u.decimals + 1}f", n_labels=5)
+        b.key(f"measured points: radial deviation from the LS cylinder (true, {u.value}; + outward)",
+              S.DEVIATION_COLORS[-1], "points")
+
+    # derived median line
+    if line is not None and len(line):
+        dl = ex.pts(np.asarray(line, float))
+        b.add("median_line", "median line", _polyline(dl), _line(S.MEDIAN_LINE, 3.0))
+        b.add("median_line", "median line points", pv.PolyData(dl.copy()),
+              dict(color=S.MEDIAN_LINE, point_size=10, render_points_as_spheres=True, lighting=False))
+        b.key("derived median line (section centres)", S.MEDIAN_LINE, "median_line")
+        ax_line = None if insp.axis is None else np.asarray(insp.axis.line, float)
+        if tol is not None and tol.projected and ax_line is not None and len(ax_line) >= 2:
+            b.add("median_line", "median line extended into the projected zone", _polyline(ex.pts(ax_line)),
+                  _line(S.MEDIAN_LINE, 2.0))
+        top = dl[-1]
+        txt = "median line"
+        if insp.axis is not None and insp.axis.deviation is not None:
+            shape = "\u00d8" if tol is not None and tol.zone is Zone.DIAMETER else "width "
+            txt += f": needs {shape}{fmt(insp.axis.deviation)}"
+        b.labels.append(Label(tuple(top + np.array([0, 0, 0.05 * f.length]) + 0.08 * ex.R0 * v), txt,
+                              S.MEDIAN_LINE, 14, layer="median_line"))
+
+    # the envelopes
+    zs = np.array([z0, z1])
+    labels_at = iter(((0.30, 28.0), (0.55, 0.0), (0.80, -28.0)))  # (height / length, angle from the tilt)
+    if insp.unrelated is not None:
+        e = insp.unrelated
+        rings = _rings(ex.pts(_env_axis(e, zs)), ex.r(e.diameter / 2.0))
+        b.add("envelopes", "unrelated envelope", _tube(rings), _surf(S.ENVELOPE, 0.22, specular=0.0))
+        name = "AMME" if e.name.find("minimum material") >= 0 else "AME"
+        b.key(f"unrelated {name} \u00d8{fmt(e.diameter)} (any orientation)", S.ENVELOPE, "envelopes")
+        h, a = next(labels_at)
+        p = ex.pts(np.array([[*e.at_z(h * f.length), h * f.length]]))[0] + side(a) * ex.r(e.diameter / 2.0)
+        b.labels.append(Label(tuple(p), f"unrelated {name} \u00d8{fmt(e.diameter)}", S.TEXT, 14, layer="envelopes"))
+    if insp.related is not None:
+        e = insp.related
+        axis_d = ex.pts(_env_axis(e, zs))
+        b.add("envelopes", "related envelope", _dashed_cage(axis_d, ex.r(e.diameter / 2.0), phase=phi),
+              _line(S.ENVELOPE_RELATED, 2.5))
+        b.key(f"related AME \u00d8{fmt(e.diameter)} (held to A), dashed", S.ENVELOPE_RELATED, "envelopes")
+        h, a = next(labels_at)
+        p = ex.pts(np.array([[*e.at_z(h * f.length), h * f.length]]))[0] + side(a) * ex.r(e.diameter / 2.0)
+        b.labels.append(Label(tuple(p), f"related AME \u00d8{fmt(e.diameter)}", S.ENVELOPE_RELATED, 14,
+                              layer="envelopes"))
+
+    # the tolerance zone at the tolerance allowed
+    if zone_axis is not None:
+        t = insp.tolerance_allowed
+        proj = bool(tol.projected)
+        colour = S.PROJECTED if proj else S.ZONE
+        ad = ex.pts(zone_axis)
+        if tol.zone is Zone.WIDTH:
+            w = ex.k * t / 2.0
+            half_y = ex.R0 * 1.15
+            cx, cy = ad[0, 0], ad[0, 1]
+            mesh = pv.Box(bounds=(cx - w, cx + w, cy - half_y, cy + half_y, ad[0, 2], ad[1, 2]))
+            shape = f"{fmt(t)} wide"
+        else:
+            mesh = _tube(_rings(ad, max(ex.k * t / 2.0, 1e-12), N_PHI), caps=True)
+            shape = f"\u00d8{fmt(t)}"
+        b.add("zone", "zone (tolerance allowed)", mesh, _surf(colour, S.ZONE_OPACITY))
+        b.key(f"tolerance zone {shape} = t + bonus" + (" (projected)" if proj else ""), colour, "zone")
+        b.notes.append(f"zone {shape}: {zone_where}")
+        ext = 0.08 * (ad[1, 2] - ad[0, 2])
+        za = _axis_at(ad, np.array([min(ad[0, 2], 0.0) - ext, max(ad[1, 2], f.length) + ext]))
+        b.add("zone_axis", "zone axis", _polyline(za), _line(S.ZONE_AXIS, 1.5))
+        b.key("zone axis (" + ("true position" if tol.characteristic is Characteristic.POSITION else "floating")
+              + ")", S.ZONE_AXIS, "zone_axis")
+        b.labels.append(Label(tuple(za[0] - v * (ex.k * t / 2.0 + 0.08 * ex.R0)), f"zone {shape} allowed",
+                              S.ZONE_AXIS, 14, layer="zone"))
+
+    # the virtual condition boundary (the gauge), where the related envelope sits
+    if insp.virtual_condition is not None:
+        vc = insp.virtual_condition
+        vname = term(res.features[f.id].virtual_condition.key, std)[0]
+        # coaxial with the related envelope (normal to A; at the true position for position), else
+        # at the basic location
+        ac = insp.related.at_z(0.0) if insp.related is not None else centre
+        ac = tuple(ex.pts(np.array([[ac[0], ac[1], 0.0]]))[0, :2])
+        b.add("vc", f"{vname}", _cage(ac, ex.r(vc / 2.0), z0, z1, n_rings=3, n_gen=8, phase=phi),
+              _line(S.VC, 2.5))
+        b.key(f"{vname} \u00d8{fmt(vc)}: the boundary a gauge checks (perfect, normal to A)", S.VC, "vc")
+        h, a = next(labels_at)
+        p = np.array([ac[0], ac[1], h * f.length]) + side(a) * ex.r(vc / 2.0)
+        b.labels.append(Label(tuple(p), f"{vname} \u00d8{fmt(vc)}", S.VC, 14, layer="vc"))
+
+    # datum A (drawn a little beyond the largest drawn radius)
+    r_big = max([ex.R0] + [ex.r(e.diameter / 2) for e in (insp.unrelated, insp.related) if e is not None])
+    if insp.points is not None and len(insp.points):
+        r_big = max(r_big, float(np.hypot(*(b.layers["points"][0].mesh.points[:, :2] - np.array(centre)).T).max()))
+    half = 1.1 * r_big + 0.2 * ex.R0
+    _datum(b, f, centre, half, f.length, _symbol_side(direction_deg))
+
+    # readouts
+    role = "HOLE" if hole else "PIN"
+    lines = [f"{role} '{f.id}' as measured",
+             f"  {_frame_text(f, u)}",
+             f"  limits {fmt(f.limits[0])} - {fmt(f.limits[1])} {u.value}"]
+    if insp.source == "points" and insp.points is not None:
+        lines.append(f"  {len(insp.points)} points in {len(insp.sections)} sections"
+                     + (f", U = {fmt(insp.uncertainty)} (k = 2)" if insp.uncertainty is not None else ", no U given"))
+    else:
+        lines.append("  typed values" + (f", U = {fmt(insp.uncertainty)} (k = 2)" if insp.uncertainty is not None else ""))
+    for e in (insp.unrelated, insp.related):
+        if e is not None:
+            how = f"tilt {e.tilt_deg:.3f} deg" if e.constraint != "typed value" else "typed"
+            if e.constraint.startswith("normal to A"):
+                how = e.constraint.split(";")[0]
+            short = e.name.replace("actual mating envelope", "AME").replace("actual minimum material envelope", "AMME")
+            lines.append(f"  {short} \u00d8{fmt(e.diameter)}  ({how})")
+    if insp.bonus is not None:
+        lines.append(f"  bonus basis: {insp.bonus_basis} envelope")
+    lines += [f"  {_latin(x)}" for x in insp.formulas]
+    if insp.axis is not None and insp.axis.deviation is not None:
+        shape = "\u00d8" if tol is not None and tol.zone is Zone.DIAMETER else "width "
+        allowed = "" if insp.tolerance_allowed is None else f" (tolerance allowed {fmt(insp.tolerance_allowed)})"
+        lines.append(f"  axis reading: median line needs {shape}{fmt(insp.axis.deviation)}{allowed}")
+    verdicts = []
+    checks = (insp.size_check, insp.axis_check, insp.surface_check)
+    wide = max(len(_word(c)[0]) for c in checks) + 2
+    for c in checks:
+        word, colour = _word(c)
+        how = {"conformance proven": "proven", "nonconformance proven": "proven"}.get(c.outcome, c.outcome)
+        verdicts.append((_latin(f"{c.name:<8}{word:<{wide}}{c.detail}  [{how}]"), colour))
+    if insp.explanation and insp.axis_check.conforms is not None and insp.surface_check.conforms is not None \
+            and insp.axis_check.conforms != insp.surface_check.conforms:
+        b.notes.append(_latin(insp.explanation[0]))
+    sc3 = _finish(res, b, ex, sc.title, lines, "", S.TEXT, direction_deg, "inspection", (f.id,), {}, bar=bar)
+    if k == 1.0:
+        caption = "TRUE SCALE\nradial deviations x 1 (no exaggeration)"
+    else:
+        caption = (f"RADIAL DEVIATIONS x {k:g}\ndeviations, sizes, offsets drawn x {k:g} about "
+                   f"\u00d8{fmt(2 * ex.R0)}; lengths, colours, numbers true")
+    return replace(sc3, caption=caption, verdicts=tuple(verdicts))
+
+
 # --------------------------------------------------------------------------- plotting
 
-_UNCUT = frozenset({"datum", "axis", "zone_axis", "clearance"})  # lines/points in the cut plane
+_UNCUT = frozenset({"datum", "axis", "zone_axis", "clearance", "median_line"})  # lines/points in the cut plane
 _OUTLINED = {"part": ("#6B737B", 2.0), "surface": (S.SURFACE, 5.0), "zone": (S.ZONE, 2.5), "mate": (None, 6.0),
-             "projected": (S.PROJECTED, 3.0)}
+             "projected": (S.PROJECTED, 3.0), "envelopes": (None, 3.0)}
 
 
 def section_cut(scene: Scene3D) -> Scene3D:
@@ -1060,13 +1427,22 @@ def add_to_plotter(plotter, scene: Scene3D, visible: set[str] | None = None) -> 
             c.GetTextProperty().SetJustificationToRight()
             c.GetTextProperty().SetBold(bold)
             actors["readouts"].append(c)
+        top = h - int(0.012 * h) - 3.2 * fs - _text_box("\n".join(scene.readouts), r.GetTextProperty())[1]
+        top -= 0.6 * fs
         if scene.verdict:  # under the readouts
-            top = h - int(0.012 * h) - 3.2 * fs - _text_box("\n".join(scene.readouts), r.GetTextProperty())[1]
-            v = plotter.add_text(scene.verdict, position=(int(0.012 * w), int(top - 0.6 * fs)), font_size=fs + 3,
+            v = plotter.add_text(scene.verdict, position=(int(0.012 * w), int(top)), font_size=fs + 3,
                                  color=scene.verdict_colour, font=S.FONT_FAMILY, render=False)
             v.GetTextProperty().BoldOn()
             v.GetTextProperty().SetVerticalJustificationToTop()
             actors["readouts"].append(v)
+            top -= _text_box(scene.verdict, v.GetTextProperty())[1] + 0.4 * fs
+        for txt, colour in scene.verdicts:  # one line each, in its own colour
+            v = plotter.add_text(txt, position=(int(0.012 * w), int(top)), font_size=fs, color=colour,
+                                 font=S.MONO_FAMILY, render=False)
+            v.GetTextProperty().BoldOn()
+            v.GetTextProperty().SetVerticalJustificationToTop()
+            actors["readouts"].append(v)
+            top -= 1.15 * _text_box(txt, v.GetTextProperty())[1]
     if "legend" in show:
         rows = [(lbl, col) for (lbl, col), layer in zip(scene.legend, scene.legend_layers) if layer in show]
         texts = []
@@ -1091,10 +1467,11 @@ def add_to_plotter(plotter, scene: Scene3D, visible: set[str] | None = None) -> 
             actors["legend"] += [sw, tx]
         if mate_actor is not None and scene.scalar_bar is not None:
             u = scene.units
+            bar = scene.scalar_bar
             actors["legend"].append(plotter.add_scalar_bar(
-                title=scene.scalar_bar["title"], mapper=mate_actor.mapper, n_labels=5, color=S.TEXT,
+                title=bar["title"], mapper=mate_actor.mapper, n_labels=bar.get("n_labels", 5), color=S.TEXT,
                 font_family=S.FONT_FAMILY, vertical=True, position_x=0.90, position_y=0.46, width=0.06,
-                height=0.34, fmt=f"%.{u.decimals}f", title_font_size=fs + 3, label_font_size=fs + 1,
+                height=0.34, fmt=bar.get("fmt", f"%.{u.decimals}f"), title_font_size=fs + 3, label_font_size=fs + 1,
                 unconstrained_font_size=True, render=False))
     return actors
 

@@ -31,6 +31,10 @@ INTERFERENCE = "#E0002B"  # material overlap: the warning colour (0.16, and the 
 TIGHT = "#16161D"  # marker of the tightest spot when it is a clearance (same as TEXT)
 PROJECTED = "#006874"  # projected tolerance zone and the mating part in it (0.11)
 OK = "#1B6B3A"  # verdict text when the parts assemble (0.10)
+NOT_PROVEN = "#8A5A00"  # inspection verdict neither proven nor disproven / not evaluated (0.12)
+ENVELOPE = "#56626E"  # unrelated actual mating envelope of a measured feature, translucent (0.12)
+ENVELOPE_RELATED = "#C77C00"  # related actual mating envelope (held to the datum), dashed wireframe (0.29)
+MEDIAN_LINE = AXIS  # derived median line (section centres) of a measured feature
 
 # Clearance colouring of the mating surface, from tight (0) to loose: a sequential ramp of
 # rising luminance (0.29 .. 0.91) in blue-green-cream with no red, so the interference red
@@ -39,6 +43,12 @@ OK = "#1B6B3A"  # verdict text when the parts assemble (0.10)
 # the interference is the darkest thing on the mating surface.
 CLEARANCE_COLORS = ("#4C9DB0", "#7CC3A2", "#C5E3A0", "#FFF4C2")
 CLEARANCE_CMAP = "matezone_clearance"  # name of the matplotlib colormap built from the list
+
+# Radial deviation of measured points from their least-squares cylinder: a diverging ramp,
+# brown (material inside the fitted cylinder: negative) through a light neutral (zero) to blue
+# (outside: positive). No red: red still means only interference.
+DEVIATION_COLORS = ("#7A3E08", "#D09A55", "#E4E4E4", "#78A9D6", "#17457F")
+DEVIATION_CMAP = "matezone_deviation"
 
 PART_OPACITY = 0.16
 DATUM_OPACITY = 0.30
@@ -86,6 +96,14 @@ def clearance_colormap(lo: float, hi: float, n: int = 256):
     return ListedColormap(cols, name=CLEARANCE_CMAP)
 
 
+def deviation_colormap(n: int = 256):
+    """A matplotlib colormap for signed radial deviation (use with a clim symmetric about 0, so
+    zero falls on the neutral middle colour)."""
+    from matplotlib.colors import LinearSegmentedColormap
+
+    return LinearSegmentedColormap.from_list(DEVIATION_CMAP, DEVIATION_COLORS, N=n)
+
+
 LEGEND_ROLES = {
     "part": PART,
     "datum": DATUM,
@@ -98,4 +116,6 @@ LEGEND_ROLES = {
     "mate": MATE,
     "interference": INTERFERENCE,
     "projected": PROJECTED,
+    "envelope": ENVELOPE,
+    "envelope_related": ENVELOPE_RELATED,
 }
