@@ -92,7 +92,6 @@ def inscribed_circle(xy: np.ndarray, centre_hint=None) -> tuple[float, float, fl
     The radius returned is the smallest distance from the centre to any point, so it is the
     radius of an empty circle by construction.
     """
-    from scipy.spatial import Delaunay
 
     xy = np.asarray(xy, float)
     if len(xy) < 3:

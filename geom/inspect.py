@@ -55,7 +55,7 @@ from .boundaries import virtual_condition
 from .model import (
     Characteristic, Feature, Kind, Material, Scene, Standard, Units, Zone, envelope_applies,
 )
-from .pointsfile import PointCloud, PointsError, read_points
+from .pointsfile import PointCloud, read_points
 
 SLACK = 1e-9  # numeric slack when comparing with a limit (scene units)
 BONUS_BASES = ("unrelated", "related")
@@ -552,7 +552,7 @@ def _from_values(scene: Scene, feature: Feature, bonus_basis: str) -> Inspection
             axis = _axis_reading(feature, ends, fit)
             if axis is not None:
                 axis = AxisReading(axis.deviation, axis.diameter_reading, axis.width_reading,
-                                   axis.method.replace(f"least-squares centres of 2 sections", "typed axis end points")
+                                   axis.method.replace("least-squares centres of 2 sections", "typed axis end points")
                                    .replace("the 2 section centres", "the typed axis end points"), axis.line)
     un = m.size
     rel = m.related_size

@@ -17,9 +17,10 @@ import io
 import math
 import os
 from dataclasses import dataclass
-from pathlib import Path
 
 import numpy as np
+
+from .textfile import read_text
 
 COLUMNS = ("x", "y", "z")
 SECTION = "section"
@@ -131,19 +132,11 @@ def parse_points(src, file: str = "<points>") -> PointCloud:
 
 def read_points(path: str | os.PathLike) -> PointCloud:
     """Read a points CSV file; errors name the file (and the line)."""
-    p = Path(path)
-    try:
-        raw = p.read_bytes()
-    except FileNotFoundError:
-        raise PointsError(str(path), "no such file") from None
-    except IsADirectoryError:
-        raise PointsError(str(path), "is a folder, expected a .csv file of points") from None
-    except OSError as e:
-        raise PointsError(str(path), f"cannot be read ({e.strerror})") from None
-    try:
-        text = raw.decode("utf-8-sig")
-    except UnicodeDecodeError as e:
-        raise PointsError(str(path), f"expected UTF-8 text, got the byte 0x{raw[e.start]:02x} at offset {e.start}") from None
+
+    def fail(message: str):
+        raise PointsError(str(path), message)
+
+    text = read_text(path, "a .csv file of points", fail)
     return parse_points(io.StringIO(text), str(path))
 
 

@@ -21,6 +21,7 @@ import tomllib
 from pathlib import Path
 from typing import Any
 
+from .textfile import read_text
 from .model import (
     Characteristic,
     Fastener,
@@ -337,20 +338,12 @@ def loads(text: str, file: str = "<scene>", source: str | None = None) -> Scene:
 
 def load(path: str | os.PathLike) -> Scene:
     """Read and validate a scene file."""
-    p = Path(path)
-    try:
-        raw = p.read_bytes()
-    except FileNotFoundError:
-        raise SceneError(str(path), "", "no such file") from None
-    except IsADirectoryError:
-        raise SceneError(str(path), "", "is a folder, expected a .toml scene file") from None
-    except OSError as e:
-        raise SceneError(str(path), "", f"cannot be read ({e.strerror})") from None
-    try:
-        text = raw.decode("utf-8")
-    except UnicodeDecodeError as e:
-        raise SceneError(str(path), "", f"expected UTF-8 text, got the byte 0x{raw[e.start]:02x} at offset {e.start}") from None
-    return loads(text, str(path), str(p.resolve()))
+
+    def fail(message: str):
+        raise SceneError(str(path), "", message)
+
+    text = read_text(path, "a .toml scene file", fail)
+    return loads(text, str(path), str(Path(path).resolve()))
 
 
 # ---------------------------------------------------------------- writing
