@@ -10,11 +10,13 @@ window accepts and rejects exactly what the command line does, with the same mes
 from __future__ import annotations
 
 import copy
+import os
+import time
 import tomllib
 from dataclasses import dataclass, replace
 from pathlib import Path
 
-from PyQt5.QtCore import QObject, pyqtSignal
+from PyQt5.QtCore import QObject, QThread, pyqtSignal, pyqtSlot
 from PyQt5.QtWidgets import QUndoCommand, QUndoStack
 
 from geom import boundaries as B
@@ -140,6 +142,79 @@ def mate_verdict_at(res: SceneResult, mate_index: int, states: dict[str, B.Featu
                    mate_formula(m, u, sc.standard), c)
 
 
+# ---------------------------------------------------------------- inspection (geom.inspect, off the GUI thread)
+
+def inspection_errors() -> tuple[type, ...]:
+    """The message-carrying errors ``matezone inspect`` turns into one line (same classes)."""
+    from geom.fitting import FitError
+    from geom.inspect import InspectError
+    from geom.pointsfile import PointsError
+
+    return (InspectError, PointsError, FitError)
+
+
+def points_source(scene: Scene, fid: str, points: str | None = None) -> tuple[str | None, float | None]:
+    """(absolute path, modification time) of the points an inspection of ``fid`` reads: ``points``
+    if given, else the feature's ``[feature.measured] points`` resolved as geom.inspect resolves
+    it (relative to the scene file). (None, None) for typed values."""
+    if points is None:
+        m = scene.feature(fid).measured
+        if m is None or m.points is None:
+            return None, None
+        base = Path(scene.source).parent if scene.source else Path.cwd()
+        path = Path(m.points) if Path(m.points).is_absolute() else base / m.points
+    else:
+        path = Path(points)
+    path = path.resolve()
+    try:
+        return str(path), path.stat().st_mtime
+    except OSError:
+        return str(path), None
+
+
+def has_measured(scene: Scene, fid: str) -> bool:
+    return scene.feature(fid).measured is not None
+
+
+def points_entry(points_path: str, scene_path: str | None) -> str:
+    """How a points file is written in ``[feature.measured] points``: relative to the scene
+    file's folder when there is one (and the relative form exists), else absolute."""
+    p = Path(points_path).resolve()
+    if scene_path:
+        try:
+            return Path(os.path.relpath(p, Path(scene_path).resolve().parent)).as_posix()
+        except ValueError:  # another drive
+            pass
+    return str(p)
+
+
+class InspectionWorker(QObject):
+    """Runs :func:`geom.inspect.inspect_feature` in its own thread. A request carries a token;
+    the answer (result or the error's message) comes back with it, so the model can drop answers
+    to requests it no longer wants."""
+
+    done = pyqtSignal(int, object, float)  # token, InspectionResult, seconds
+    failed = pyqtSignal(int, str)  # token, message (the CLI's text)
+
+    @pyqtSlot(int, object, str, object, str)
+    def run(self, token: int, scene, fid: str, points, basis: str) -> None:
+        from geom.inspect import inspect_feature
+
+        t0 = time.perf_counter()
+        try:
+            res = inspect_feature(scene, fid, points=points, bonus_basis=basis)
+        except inspection_errors() as e:
+            self.failed.emit(token, str(e))
+            return
+        except OSError as e:
+            self.failed.emit(token, f"{points or fid}: cannot be read ({e.strerror or e})")
+            return
+        except Exception as e:  # the window keeps running; the message says what went wrong
+            self.failed.emit(token, f"internal error while inspecting {fid!r}: {type(e).__name__}: {e}")
+            return
+        self.done.emit(token, res, time.perf_counter() - t0)
+
+
 # ---------------------------------------------------------------- the model
 
 
@@ -166,6 +241,11 @@ class SceneModel(QObject):
     pathChanged = pyqtSignal(str)
     dirtyChanged = pyqtSignal(bool)
     message = pyqtSignal(str, str)  # level ("info" | "error"), text
+    inspectionChanged = pyqtSignal()  # a new inspection result is shown (or none)
+    inspectionBusy = pyqtSignal(bool)  # an inspection is being computed
+    inspectionFinished = pyqtSignal(bool)  # a requested inspection ended: True shown, False refused
+    bonusBasisChanged = pyqtSignal(str)
+    _request = pyqtSignal(int, object, str, object, str)  # to the worker thread
 
     def __init__(self, scene: Scene | None = None, path: str | None = None, parent=None):
         super().__init__(parent)
@@ -178,6 +258,16 @@ class SceneModel(QObject):
         self.focus: tuple[str, object] = ("feature", self.scene.features[0].id)
         self._reset_states()
         self._default_focus()
+        # inspection: the last valid result shown, the key it was computed for, the request out
+        self.bonus_basis = "unrelated"
+        self.inspection = None  # geom.inspect.InspectionResult of the feature last inspected
+        self.inspection_key: tuple | None = None
+        self.inspection_seconds = 0.0
+        self._token = 0
+        self._recording = False
+        self._pending: dict | None = None  # the request in flight
+        self._ithread: QThread | None = None
+        self._iworker: InspectionWorker | None = None
 
     def _clean_changed(self, clean: bool) -> None:
         self.dirtyChanged.emit(not clean)
@@ -200,11 +290,25 @@ class SceneModel(QObject):
             return [m.hole, m.pin]
         return [key]
 
+    def focus_inspection(self) -> str | None:
+        """The feature whose inspection is looked at, or None."""
+        kind, key = self.focus
+        return key if kind == "inspection" else None
+
+    def shown_inspection(self):
+        """The inspection result of the focused feature (the last valid one), or None."""
+        fid = self.focus_inspection()
+        if fid is not None and self.inspection is not None and self.inspection.feature.id == fid:
+            return self.inspection
+        return None
+
     def focus_mate(self) -> int | None:
         """Index of the mate looked at, or of the first mate the focused feature is in."""
         kind, key = self.focus
         if kind == "mate":
             return key
+        if kind == "inspection":
+            return None
         for i, m in enumerate(self.scene.mates):
             if key in (m.hole, m.pin):
                 return i
@@ -215,11 +319,13 @@ class SceneModel(QObject):
     def set_focus(self, kind: str, key) -> None:
         if kind == "mate" and not (isinstance(key, int) and 0 <= key < len(self.scene.mates)):
             return
-        if kind == "feature" and key not in {f.id for f in self.scene.features}:
+        if kind in ("feature", "inspection") and key not in {f.id for f in self.scene.features}:
             return
         if (kind, key) != self.focus:
             self.focus = (kind, key)
             self.focusChanged.emit()
+        if kind == "inspection":
+            self.request_inspection()
 
     def set_state(self, fid: str, size: float | None = None, share: float | None = None,
                   direction_deg: float | None = None) -> None:
@@ -286,23 +392,28 @@ class SceneModel(QObject):
         for old, new in (renames or {}).items():
             if old in self.states:
                 self.states[new] = self.states.pop(old)
-            if self.focus == ("feature", old):
-                self.focus = ("feature", new)
+            if self.focus in (("feature", old), ("inspection", old)):
+                self.focus = (self.focus[0], new)
         self.scene = scene
         self.result = analyse_scene(scene)
         self._reset_states()
         kind, key = self.focus
         if (kind == "mate" and key >= len(scene.mates)) or (
-                kind == "feature" and key not in {f.id for f in scene.features}):
+                kind in ("feature", "inspection") and key not in {f.id for f in scene.features}):
             self._default_focus()
         self.sceneChanged.emit()
         self.statesChanged.emit()
         self.focusChanged.emit()
+        if self.focus_inspection() is not None:
+            self.request_inspection()  # the feature or its measured data may have changed
 
     # ------------------------------------------------------------ files
 
     def replace_scene(self, scene: Scene, path: str | None) -> None:
         """Open / New: a fresh history, clean."""
+        self._token += 1  # answers to requests about the old scene are dropped
+        self._pending = None
+        self.inspection, self.inspection_key = None, None
         self.undo_stack.clear()
         self.path = path
         self.states = {}
@@ -325,14 +436,156 @@ class SceneModel(QObject):
         target = path or self.path
         if not target:
             raise ValueError("no file name given")
-        save(self.scene, target)
-        if target != self.path:
+        moved = target != self.path
+        scene = self._rebase_points(self.scene, target) if moved else self.scene
+        save(scene, target)
+        if moved:
             self.path = str(target)
-            self.scene = replace(self.scene, source=str(Path(target).resolve()))
+            self.scene = replace(scene, source=str(Path(target).resolve()))
             self.pathChanged.emit(self.path)
         self.undo_stack.setClean()
         self.dirtyChanged.emit(False)
         self.message.emit("info", f"saved {self.path}")
+
+    def _rebase_points(self, scene: Scene, target: str) -> Scene:
+        """The scene with each relative points file rewritten relative to ``target``'s folder
+        (same files; a scene saved elsewhere still finds its measured points)."""
+        feats = []
+        for f in scene.features:
+            m = f.measured
+            if m is not None and m.points is not None and not Path(m.points).is_absolute():
+                path, _ = points_source(scene, f.id)
+                f = f.with_(measured=replace(m, points=points_entry(path, target)))
+            feats.append(f)
+        return replace(scene, features=tuple(feats))
+
+    # ------------------------------------------------------------ inspection
+
+    def set_bonus_basis(self, basis: str) -> None:
+        """Take the bonus from the unrelated or the related envelope (geom.inspect.BONUS_BASES)."""
+        from geom.inspect import BONUS_BASES
+
+        if basis not in BONUS_BASES or basis == self.bonus_basis:
+            return
+        self.bonus_basis = basis
+        self.bonusBasisChanged.emit(basis)
+        if self.focus_inspection() is not None:
+            self.request_inspection()
+
+    def _key(self, fid: str, points: str | None) -> tuple:
+        f = self.scene.feature(fid)
+        path, mtime = points_source(self.scene, fid, points)
+        m = f.measured
+        typed = None if path is not None or m is None else m
+        return (fid, self.scene.units, self.scene.standard, replace(f, measured=None, name=""),
+                None if m is None else m.uncertainty, typed, path, mtime, self.bonus_basis)
+
+    def request_inspection(self) -> None:
+        """Inspect the focused feature from its [feature.measured] data, unless the result shown
+        is already for the same feature, data and bonus basis."""
+        fid = self.focus_inspection()
+        if fid is None or self._recording:
+            return
+        if not has_measured(self.scene, fid):
+            self._token += 1
+            self._pending = None
+            if self.inspection is not None and self.inspection.feature.id == fid:
+                self.inspection, self.inspection_key = None, None
+                self.inspectionChanged.emit()
+            self.message.emit("info", f"{fid} has no measured data yet: use File > Load measured points… "
+                                      "to read a CSV of points for it")
+            return
+        self._submit(fid, None, record=False)
+
+    def load_points(self, fid: str, path: str) -> None:
+        """Inspect ``fid`` from the CSV ``path``. When it can be used, the path is recorded in the
+        feature's [feature.measured] points (an undoable edit) and the inspection is shown; when
+        not, the message says why and nothing changes."""
+        if fid not in {f.id for f in self.scene.features}:
+            self.message.emit("error", f"no feature {fid!r} to load points for")
+            return
+        self._submit(fid, str(path), record=True)
+
+    def _submit(self, fid: str, points: str | None, record: bool) -> None:
+        key = self._key(fid, points)
+        if not record and self.inspection is not None and key == self.inspection_key:
+            return
+        if self._pending is not None and self._pending["key"] == key and self._pending["record"] == record:
+            return
+        self._token += 1
+        self._pending = dict(token=self._token, fid=fid, points=points, record=record, key=key)
+        self._start_worker()
+        self.inspectionBusy.emit(True)
+        self._request.emit(self._token, self.scene, fid, points, self.bonus_basis)
+
+    def _start_worker(self) -> None:
+        if self._ithread is not None:
+            return
+        self._ithread = QThread(self)
+        self._iworker = InspectionWorker()
+        self._iworker.moveToThread(self._ithread)
+        self._request.connect(self._iworker.run)
+        self._iworker.done.connect(self._inspected)
+        self._iworker.failed.connect(self._inspect_failed)
+        self._ithread.start()
+
+    def stop_worker(self) -> None:
+        """End the inspection thread (the window calls this when it closes)."""
+        if self._ithread is not None:
+            self._ithread.quit()
+            self._ithread.wait()
+            self._ithread = None
+            self._iworker = None
+
+    def _inspected(self, token: int, res, seconds: float) -> None:
+        req = self._pending
+        if req is None or token != req["token"]:
+            return  # an answer nobody waits for any more
+        self._pending = None
+        self.inspection_seconds = seconds
+        if req["record"]:
+            fid, entry = req["fid"], points_entry(req["points"], self.path)
+
+            def mutate(d):
+                i = feature_index(self.scene, fid)
+                d["feature"][i].setdefault("measured", {})["points"] = entry
+
+            self._recording = True  # the edit's sceneChanged must not start another inspection
+            try:
+                err = self.try_edit(mutate, f"load measured points for {fid}")
+            finally:
+                self._recording = False
+            if err is not None:
+                self.inspectionBusy.emit(False)
+                self.message.emit("error", str(err))
+                self.inspectionFinished.emit(False)
+                return
+            req["key"] = self._key(fid, None)
+        self.inspection, self.inspection_key = res, req["key"]
+        self.inspectionBusy.emit(False)
+        for w in res.warnings:
+            self.message.emit("info", f"warning: {w}")
+        if req["record"]:
+            n = 0 if res.points is None else len(res.points)
+            self.message.emit("info", f"{n} measured points of {req['fid']} read from {req['points']}")
+        if self.focus != ("inspection", req["fid"]):
+            self.focus = ("inspection", req["fid"])
+            self.focusChanged.emit()
+        self.inspectionChanged.emit()
+        self.inspectionFinished.emit(True)
+
+    def _inspect_failed(self, token: int, text: str) -> None:
+        req = self._pending
+        if req is None or token != req["token"]:
+            return
+        self._pending = None
+        self.inspectionBusy.emit(False)
+        self.message.emit("error", text)  # the last valid view stays
+        self.inspectionFinished.emit(False)
+
+    @property
+    def inspecting(self) -> bool:
+        return self._pending is not None
 
     # ------------------------------------------------------------ helpers for widgets
 

@@ -4,14 +4,15 @@ readout table, the fit verdict and the message bar. Each observes the :class:`Sc
 from __future__ import annotations
 
 import re
+from pathlib import Path
 
 from PyQt5.QtCore import Qt, pyqtSignal
 from PyQt5.QtGui import QBrush, QColor, QFont
 from PyQt5.QtWidgets import (
-    QAbstractItemView, QCheckBox, QComboBox, QDoubleSpinBox, QFormLayout, QFrame, QGridLayout,
-    QGroupBox, QHBoxLayout, QHeaderView, QLabel, QLineEdit, QListWidget, QListWidgetItem,
-    QPushButton, QSizePolicy, QSlider, QTableWidget, QTableWidgetItem, QToolButton, QVBoxLayout,
-    QWidget,
+    QAbstractItemView, QButtonGroup, QCheckBox, QComboBox, QDoubleSpinBox, QFormLayout, QFrame,
+    QGridLayout, QGroupBox, QHBoxLayout, QHeaderView, QLabel, QLineEdit, QListWidget,
+    QListWidgetItem, QPushButton, QRadioButton, QSizePolicy, QSlider, QTableWidget,
+    QTableWidgetItem, QToolButton, QVBoxLayout, QWidget,
 )
 
 from geom.analysis import term
@@ -19,6 +20,7 @@ from geom.model import Characteristic, Kind, Material, Standard, Units, Zone
 from geom.readout import STANDARD_NAME, feature_heading, feature_rows
 from geom.scenefile import SceneError
 
+from .glyphs import mono_css, ui_text
 from .model import SceneModel, feature_index, mate_verdict_at, rename_in_mates, whatif_rows
 
 ERROR_STYLE = "border: 2px solid #c62828; background: #fff3f3;"
@@ -43,6 +45,10 @@ def _opt(text: str):
 
 def _num_text(v) -> str:
     return "" if v is None else repr(float(v)).removesuffix(".0") if float(v).is_integer() else repr(float(v))
+
+
+def _html(text: str) -> str:
+    return text.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;")
 
 
 def _combo(values, labels=None) -> QComboBox:
@@ -142,6 +148,14 @@ class ContentsList(QWidget):
             it = QListWidgetItem(f"{f.kind.value} {f.id}" + (f" – {f.name}" if f.name else ""))
             it.setData(Qt.UserRole, ("feature", f.id))
             self.list.addItem(it)
+        for f in sc.features:
+            if f.measured is None:
+                continue
+            src = f"points {Path(f.measured.points).name}" if f.measured.points else "typed values"
+            it = QListWidgetItem(f"inspection: {f.id} ({src})")
+            it.setData(Qt.UserRole, ("inspection", f.id))
+            it.setToolTip(f"The produced {f.kind.value} {f.id} judged from its measured data")
+            self.list.addItem(it)
         self.list.blockSignals(False)
         self._select_focus()
 
@@ -191,6 +205,11 @@ class ContentsList(QWidget):
 
     def _remove(self) -> None:
         kind, key = self.model.focus
+        if kind == "inspection":
+            i = feature_index(self.model.scene, key)
+            self._report(self.model.try_edit(lambda d: d["feature"][i].pop("measured", None),
+                                             f"remove the measured data of {key}"))
+            return
         if kind == "mate":
             self._report(self.model.try_edit(lambda d: d["mate"].pop(key), f"remove mate {key + 1}"))
             return
@@ -396,9 +415,19 @@ class FeatureForm(_Form):
         tl.addRow("Projected zone", self._line("tolerance.projected", "Projected height beyond A (empty: none)"))
         tl.addRow("Basic angle", self._line("tolerance.angle", "Angle to datum A in degrees (angularity only)"))
         self.frame = QLabel()
-        self.frame.setStyleSheet("font-family: monospace;")
+        self.frame.setStyleSheet(f"font-family: {mono_css()};")
         tl.addRow("Frame", self.frame)
         outer.addWidget(self.tol_box)
+        meas = QGroupBox("Measured part")
+        ml = QVBoxLayout(meas)
+        self.measured_label = QLabel()
+        self.measured_label.setWordWrap(True)
+        ml.addWidget(self.measured_label)
+        self.load_button = QPushButton("Load measured points…")
+        self.load_button.setToolTip("Read a CSV of points measured on this feature (x,y,z[,section], datum frame) "
+                                    "and judge the produced part")
+        ml.addWidget(self.load_button, 0, Qt.AlignLeft)
+        outer.addWidget(meas)
         outer.addWidget(self.error_label)
         revert = QPushButton("Discard typed values")
         revert.setToolTip("Show the values of the scene again, dropping rejected input")
@@ -411,7 +440,7 @@ class FeatureForm(_Form):
 
     def _focus(self) -> None:
         kind, key = self.model.focus
-        fid = key if kind == "feature" else self.model.scene.mates[key].hole
+        fid = key if kind in ("feature", "inspection") else self.model.scene.mates[key].hole
         if fid != self.fid or not self.has_error():
             self.fid = fid
             self.fill()
@@ -424,7 +453,7 @@ class FeatureForm(_Form):
         r = self.model.result.features[f.id]
         u = sc.units
         self._filling = True
-        self.heading.setText(f"<b>{feature_heading(r, u)}</b>")
+        self.heading.setText(f"<b>{_html(ui_text(feature_heading(r, u)))}</b>")
         F = self.fields
         F["id"].setText(f.id)
         F["name"].setText(f.name)
@@ -446,9 +475,16 @@ class FeatureForm(_Form):
             F["tolerance.datums"].setText(", ".join(t.datums))
             F["tolerance.projected"].setText(_num_text(t.projected))
             F["tolerance.angle"].setText(_num_text(t.angle))
-            self.frame.setText(t.symbol(u))
+            self.frame.setText(ui_text(t.symbol(u)))
         else:
             self.frame.setText("")
+        m = f.measured
+        if m is None:
+            self.measured_label.setText("No measured data.")
+        elif m.points:
+            self.measured_label.setText(f"Points file: {m.points}")
+        else:
+            self.measured_label.setText("Inspection values typed in the scene file.")
         self._filling = False
         self.mark(None, None)
 
@@ -515,23 +551,45 @@ class FeatureForm(_Form):
 # ---------------------------------------------------------------- what-if controls
 
 
+class LengthSpin(QDoubleSpinBox):
+    """A spin box that shows a length at the scene's display precision (mm 3 decimals, in 4, as
+    :meth:`geom.model.Units.fmt`) but keeps finer typed values (up to 6 decimals); the exact
+    value is in the tooltip."""
+
+    STORED = 6
+
+    def __init__(self, display: int, parent=None):
+        super().__init__(parent)
+        self.display = display
+        self.setDecimals(max(self.STORED, display))
+        self.valueChanged.connect(lambda v: self.setToolTip(f"{v:.{self.decimals()}f}".rstrip("0").rstrip(".")))
+
+    def textFromValue(self, v: float) -> str:
+        return f"{v:.{self.display}f}"
+
+
 class _SliderSpin(QWidget):
     """A slider for sweeping plus a spin box for an exact value, kept in step."""
 
     valueChanged = pyqtSignal(float)
     STEPS = 1000
 
-    def __init__(self, lo: float, hi: float, decimals: int, suffix: str = "", left="", right="", parent=None):
+    def __init__(self, lo: float, hi: float, decimals: int, suffix: str = "", left="", right="", parent=None,
+                 length: bool = False):
         super().__init__(parent)
         self.lo, self.hi = lo, hi
         lay = QGridLayout(self)
         lay.setContentsMargins(0, 0, 0, 0)
         self.slider = QSlider(Qt.Horizontal)
         self.slider.setRange(0, self.STEPS)
-        self.spin = QDoubleSpinBox()
-        self.spin.setDecimals(decimals)
+        if length:  # shown at ``decimals``, finer typed values kept; steps of the last shown digit
+            self.spin = LengthSpin(decimals)
+            self.spin.setSingleStep(10.0 ** -decimals)
+        else:
+            self.spin = QDoubleSpinBox()
+            self.spin.setDecimals(decimals)
+            self.spin.setSingleStep(10.0 ** -(decimals - 1) if decimals > 1 else 1.0)
         self.spin.setRange(lo, hi)
-        self.spin.setSingleStep(10.0 ** -(decimals - 1) if decimals > 1 else 1.0)
         self.spin.setSuffix(suffix)
         self.spin.setKeyboardTracking(False)
         self.spin.setMinimumWidth(110)
@@ -584,12 +642,11 @@ class FeatureControls(QGroupBox):
         self.model, self.fid = model, fid
         u = model.scene.units
         st = model.scene.standard
-        dec = u.decimals + 1
         lay = QFormLayout(self)
         mm, lm = term("mmc", st)[0], term("lmc", st)[0]
         # the slider runs from MMC (left) to LMC (right) whichever way the size grows
-        self.size = _SliderSpin(min(f.mmc, f.lmc), max(f.mmc, f.lmc), dec, f" {u.value}",
-                                f"{mm} {u.fmt(f.mmc)}", f"{lm} {u.fmt(f.lmc)}")
+        self.size = _SliderSpin(min(f.mmc, f.lmc), max(f.mmc, f.lmc), u.decimals, f" {u.value}",
+                                f"{mm} {u.fmt(f.mmc)}", f"{lm} {u.fmt(f.lmc)}", length=True)
         self.size.slider.setInvertedAppearance(f.mmc > f.lmc)
         self.size.slider.setToolTip("Left: MMC (smallest hole / largest pin), right: LMC")
         self.direction = _SliderSpin(0.0, 360.0, 1, " deg")
@@ -615,9 +672,81 @@ class FeatureControls(QGroupBox):
         self.share.set_value(st.share * 100.0)
 
 
+BASIS_TEXT = {
+    "unrelated": ("unrelated envelope", "Bonus from the unrelated actual mating envelope: the perfect cylinder "
+                                        "that fits, in any orientation"),
+    "related": ("related envelope (held to the datum)", "Bonus from the related actual mating envelope: the "
+                                                       "perfect cylinder that fits while held normal to A"),
+}
+
+
+class InspectionControls(QGroupBox):
+    """For an inspection: where the measured data come from, the bonus basis switch and the
+    button that loads another points file. The numbers are in the readout table."""
+
+    def __init__(self, model: SceneModel, fid: str, parent=None):
+        super().__init__(f"measured {model.scene.feature(fid).kind.value} {fid}", parent)
+        self.model, self.fid = model, fid
+        lay = QVBoxLayout(self)
+        self.source = QLabel()
+        self.source.setWordWrap(True)
+        self.source.setTextInteractionFlags(Qt.TextSelectableByMouse)
+        lay.addWidget(self.source)
+        self.load_button = QPushButton("Load measured points…")
+        self.load_button.setToolTip("Read a CSV of points measured on this feature (x,y,z[,section], datum frame)")
+        lay.addWidget(self.load_button, 0, Qt.AlignLeft)
+        lay.addWidget(QLabel("Bonus taken from the"))
+        self.basis = QButtonGroup(self)
+        self.basis_buttons: dict[str, QRadioButton] = {}
+        for key, (text, tip) in BASIS_TEXT.items():
+            b = QRadioButton(text)
+            b.setToolTip(tip)
+            b.toggled.connect(lambda on, key=key: model.set_bonus_basis(key) if on else None)
+            self.basis.addButton(b)
+            self.basis_buttons[key] = b
+            lay.addWidget(b)
+        self.busy = QLabel("computing the envelopes and the median line…")
+        self.busy.setStyleSheet("color: #546e7a; font-style: italic;")
+        self.busy.setVisible(model.inspecting)
+        lay.addWidget(self.busy)
+        model.bonusBasisChanged.connect(lambda _b: self.sync())
+        model.inspectionBusy.connect(self.busy.setVisible)
+        model.inspectionChanged.connect(self.sync)
+        model.sceneChanged.connect(self.sync)
+        self.sync()
+
+    def sync(self) -> None:
+        m = self.model
+        b = self.basis_buttons[m.bonus_basis]
+        if not b.isChecked():
+            b.blockSignals(True)
+            b.setChecked(True)
+            b.blockSignals(False)
+        if self.fid not in {f.id for f in m.scene.features}:
+            return
+        meas = m.scene.feature(self.fid).measured
+        res = m.shown_inspection()
+        if res is not None and res.source == "points":
+            n = 0 if res.points is None else len(res.points)
+            text = f"{n} points in {len(res.sections)} sections from <b>{_html(Path(res.source_file).name)}</b>"
+        elif res is not None:
+            text = "inspection values typed in the scene file"
+        elif meas is None:
+            text = "no measured data yet: load a CSV of points"
+        else:
+            text = "not inspected yet"
+        if res is not None:
+            text += (f"; U = {m.scene.units.fmt(res.uncertainty)} (k = 2)" if res.uncertainty is not None
+                     else "; no uncertainty U given")
+        self.source.setText(text)
+        self.source.setToolTip(res.source_file if res is not None and res.source_file else "")
+
+
 class WhatIfPanel(QWidget):
     """What-if controls for the features in focus; the worst case is MMC with all of the
-    tolerance used."""
+    tolerance used. For an inspection: the measured data and the bonus basis."""
+
+    loadRequested = pyqtSignal()  # "Load measured points…" pressed in the inspection controls
 
     def __init__(self, model: SceneModel, parent=None):
         super().__init__(parent)
@@ -634,7 +763,10 @@ class WhatIfPanel(QWidget):
         head.addWidget(hint, 1)
         head.addWidget(reset)
         self.lay.addLayout(head)
+        self.hint = hint
+        self.reset = reset
         self.groups: dict[str, FeatureControls] = {}
+        self.inspection: InspectionControls | None = None
         self._shown: tuple = ()
         model.focusChanged.connect(self.rebuild)
         model.sceneChanged.connect(lambda: self.rebuild(force=True))
@@ -643,16 +775,28 @@ class WhatIfPanel(QWidget):
 
     def rebuild(self, force: bool = False) -> None:
         fids = tuple(self.model.focus_features())
-        key = (fids, self.model.scene.units)
+        insp = self.model.focus_inspection()
+        key = (fids, self.model.scene.units, insp)
         if key == self._shown and not force:
             return
         self._shown = key
-        for g in self.groups.values():
+        old = list(self.groups.values()) + ([self.inspection] if self.inspection is not None else [])
+        for g in old:
             self.lay.removeWidget(g)
             g.hide()
             g.setParent(None)
             g.deleteLater()
         self.groups = {}
+        self.inspection = None
+        self.hint.setText("The measured part is judged as produced: no what-if here. Pick a mate or a "
+                          "feature in the list above to try sizes." if insp else
+                          "Move a size from MMC toward LMC: the bonus grows, the VC stays put.")
+        self.reset.setVisible(insp is None)
+        if insp is not None:
+            self.inspection = InspectionControls(self.model, insp)
+            self.inspection.load_button.clicked.connect(self.loadRequested)
+            self.lay.addWidget(self.inspection)
+            return
         for fid in fids:
             g = FeatureControls(self.model, fid)
             self.groups[fid] = g
@@ -665,6 +809,11 @@ class WhatIfPanel(QWidget):
 
 
 # ---------------------------------------------------------------- verdict and readouts
+
+
+def check_word(c) -> str:
+    """The verdict word of a geom.inspect Check (as ``matezone inspect`` prints it)."""
+    return {True: "CONFORMS", False: "FAILS", None: "not evaluated"}[c.conforms]
 
 
 class VerdictBanner(QFrame):
@@ -690,9 +839,14 @@ class VerdictBanner(QFrame):
         model.statesChanged.connect(self.refresh)
         model.focusChanged.connect(self.refresh)
         model.sceneChanged.connect(self.refresh)
+        model.inspectionChanged.connect(self.refresh)
         self.refresh()
 
     def refresh(self) -> None:
+        fid = self.model.focus_inspection()
+        if fid is not None:
+            self._inspection(fid)
+            return
         mi = self.model.focus_mate()
         if mi is None:
             self.state = "none"
@@ -707,6 +861,27 @@ class VerdictBanner(QFrame):
         self._paint(fg, bg, f"{mark} {v.headline}",
                     f"Mate {mi + 1} ({m.hole} ← {m.pin}). Worst case: {v.worst_case}.<br>"
                     f"<span style='font-family:monospace'>{v.formula}</span>")
+
+    def _inspection(self, fid: str) -> None:
+        res = self.model.shown_inspection()
+        if res is None:
+            self.state = "none"
+            self._paint(NEUTRAL, "#eceff1", f"INSPECTION of {fid}: no result yet",
+                        "Load a CSV of measured points for it (File > Load measured points…).")
+            return
+        checks = (res.size_check, res.axis_check, res.surface_check)
+        words = [f"{c.name} {check_word(c)}" for c in checks]
+        failed = any(c.conforms is False for c in checks)
+        self.state = "fails" if failed else "conforms"
+        fg, bg = (BAD_RED, "#ffebee") if failed else (OK_GREEN, "#e8f5e9")
+        lead = "✖" if failed else "✔"
+        rule = ("ISO 14253-1 decision rule, U = " + self.model.scene.units.fmt(res.uncertainty) + " (k = 2)"
+                if res.uncertainty is not None else "no uncertainty U given: measured values alone")
+        detail = f"Measured {res.feature.kind.value} {fid}, bonus from the {res.bonus_basis} envelope; {rule}."
+        governs = next((e for e in res.explanation if "governs" in e or "is the requirement" in e), None)
+        if governs:  # geom's sentence on which reading decides when axis and surface disagree
+            detail += "<br>" + _html(governs)
+        self._paint(fg, bg, f"{lead} INSPECTION {fid}: " + ", ".join(words), detail)
 
     def _paint(self, fg: str, bg: str, head: str, detail: str) -> None:
         self.setStyleSheet(f"#verdict {{ background: {bg}; border: 2px solid {fg}; border-radius: 4px; }}"
@@ -737,9 +912,10 @@ class ReadoutTable(QTableWidget):
         model.statesChanged.connect(self.refresh)
         model.focusChanged.connect(self.refresh)
         model.sceneChanged.connect(self.refresh)
+        model.inspectionChanged.connect(self.refresh)
         self.refresh()
 
-    def _add(self, cells, bold=False, bg: str | None = None, tip: str = "") -> None:
+    def _add(self, cells, bold=False, bg: str | None = None, tip: str = "", fg: str | None = None) -> None:
         r = self.rowCount()
         self.insertRow(r)
         for c, text in enumerate(cells):
@@ -750,10 +926,93 @@ class ReadoutTable(QTableWidget):
                 it.setFont(f)
             if bg:
                 it.setBackground(QBrush(QColor(bg)))
+            if fg and c < 2:
+                it.setForeground(QBrush(QColor(fg)))
             if c == 1:
                 it.setTextAlignment(Qt.AlignRight | Qt.AlignVCenter)
             it.setToolTip(tip or text)
             self.setItem(r, c, it)
+
+    def _row(self, fid: str, quantity: str, value: str, formula: str = "", **kw) -> None:
+        self.values[(fid, quantity)] = value
+        self._add((quantity, value, formula), **kw)
+
+    def inspection_rows(self, res) -> None:
+        """Every row from geom.inspect's InspectionResult: nothing is computed here."""
+        fid = res.feature.id
+        u = res.units
+        fmt = u.fmt
+        head = dict(bold=True, bg="#eceff1")
+        src = (f"{len(res.points)} points in {len(res.sections)} sections from {res.source_file}"
+               if res.source == "points" and res.points is not None else "values typed in the scene file")
+        self._add((f"inspection of {res.feature.kind.value} {fid}", "", src), bold=True, bg="#e3f2fd")
+        self._add(("verdicts", "", "ISO 14253-1 decision rule, U = " + fmt(res.uncertainty) + " (k = 2)"
+                   if res.uncertainty is not None else "no uncertainty U given: decided on the measured values alone"),
+                  **head)
+        for c in (res.size_check, res.axis_check, res.surface_check):
+            colour = {True: OK_GREEN, False: BAD_RED}.get(c.conforms, NEUTRAL)
+            self._row(fid, f"{c.name} verdict", check_word(c), f"{c.detail}   [{c.outcome}]", fg=colour, bold=True)
+            self.values[(fid, f"{c.name} outcome")] = c.outcome
+        if res.envelope_check is not None:
+            for c in (res.local_check, res.envelope_check):
+                self._row(fid, f"  {c.name}", check_word(c), f"{c.detail}   [{c.outcome}]")
+        self._add(("envelopes", "", "perfect cylinders fitted to the measured surface"), **head)
+        for e in (res.unrelated, res.related, res.least_material, res.least_material_related):
+            if e is None:
+                continue
+            how = e.constraint if e.constraint == "typed value" else (
+                f"axis at A ({fmt(e.point[0])}, {fmt(e.point[1])}), tilt {e.tilt_deg:.5f} deg; {e.constraint}")
+            self._row(fid, e.name, ui_text(f"⌀{fmt(e.diameter)}"), how)
+        if res.local_sizes is not None:
+            self._row(fid, "local sizes (two-point)", f"{fmt(res.local_sizes[0])} .. {fmt(res.local_sizes[1])}",
+                      f"limits {fmt(res.feature.limits[0])} .. {fmt(res.feature.limits[1])}")
+        if res.bonus is not None or res.formulas:
+            self._add(("bonus and tolerance allowed", "", f"bonus basis: the {res.bonus_basis} envelope"), **head)
+            self._row(fid, "bonus basis", res.bonus_basis,
+                      "switch it in the side panel (unrelated: any orientation; related: held to the datum)")
+            formulas = list(res.formulas)
+            # geom lists the bonus formula first (when a bonus was evaluated), then tolerance allowed
+            bonus_f = formulas[0] if formulas and res.bonus is not None and not formulas[0].startswith(
+                "tolerance allowed") else ""
+            allowed_f = next((x for x in formulas if x.startswith("tolerance allowed")), "")
+            self._row(fid, "bonus", fmt(res.bonus), ui_text(bonus_f))
+            self._row(fid, "tolerance allowed", fmt(res.tolerance_allowed), allowed_f)
+            for x in formulas:
+                if x not in (bonus_f, allowed_f):
+                    self._add(("", "", ui_text(x)))
+        if res.virtual_condition is not None:
+            self._row(fid, "virtual condition", fmt(res.virtual_condition), "the boundary a functional gauge checks")
+        if res.axis is not None:
+            a = res.axis
+            self._add(("axis reading", "", "derived median line"), **head)
+            self._row(fid, "axis reading", fmt(a.deviation), ui_text(a.method))
+            if a.diameter_reading is not None:
+                self._row(fid, "  diameter reading", fmt(a.diameter_reading), "")
+            if a.width_reading is not None:
+                self._row(fid, "  width reading", fmt(a.width_reading), "")
+        ls = res.least_squares
+        if ls is not None:
+            self._add(("least squares vs envelope", "", "the usual CMM printout, side by side"), **head)
+            self._row(fid, "LS size", ui_text(f"⌀{fmt(ls.size)}"),
+                      ui_text(f"envelope ⌀{fmt(res.unrelated_ame)}") + "; LS size {'within' if ls.size_conforms else 'outside'} "
+                      "the limits")
+            if ls.axis_deviation is not None:
+                self._row(fid, "LS axis reading", fmt(ls.axis_deviation), ui_text(ls.formulas[1]) if len(ls.formulas) > 1 else "")
+            if ls.tolerance_allowed is not None:
+                self._row(fid, "LS tolerance allowed", fmt(ls.tolerance_allowed),
+                          " ; ".join(ui_text(x) for x in ls.formulas[2:]))
+            if ls.axis_conforms is not None:
+                self._row(fid, "LS axis verdict", "CONFORMS" if ls.axis_conforms else "FAILS",
+                          f"{fmt(ls.axis_deviation)} {'<=' if ls.axis_conforms else '>'} {fmt(ls.tolerance_allowed)}")
+        if res.explanation:
+            self._add(("explanation", "", ""), **head)
+            for i, e in enumerate(res.explanation):
+                self.values[(fid, f"explanation {i + 1}")] = e
+                self._add(("", "", ui_text(e)), tip=e)
+        for n in res.notes:
+            self._add(("note", "", ui_text(n)))
+        for w in res.warnings:
+            self._add(("warning", "", ui_text(w)), fg=BAD_RED)
 
     def refresh(self) -> None:
         m = self.model
@@ -762,6 +1021,18 @@ class ReadoutTable(QTableWidget):
         self.setUpdatesEnabled(False)
         self.setRowCount(0)
         self.values = {}
+        fid = m.focus_inspection()
+        if fid is not None:
+            insp = m.shown_inspection()
+            if insp is not None:
+                self.inspection_rows(insp)
+                self.setWordWrap(True)
+                self.resizeRowsToContents()
+            else:
+                self._add((f"inspection of {fid}", "", "no result yet: load measured points"), bold=True, bg="#e3f2fd")
+            self.setUpdatesEnabled(True)
+            return
+        self.setWordWrap(False)
         for fid in m.focus_features():
             r = res.features[fid]
             self._add((f"{r.feature.kind.value} {fid} at the sizes set", "", ""), bold=True, bg="#e3f2fd")
@@ -772,7 +1043,7 @@ class ReadoutTable(QTableWidget):
             self._add((f"{fid}: limits and worst-case boundaries", "", ""), bold=True, bg="#eceff1")
             for q, v, fml in feature_rows(r, u, st):
                 self.values[(fid, q)] = v
-                self._add((q, v, fml))
+                self._add((q, ui_text(v), ui_text(fml)))
             for n in r.notes:
                 self._add(("note", "", n))
         mi = m.focus_mate()

@@ -10,7 +10,7 @@ from __future__ import annotations
 import time
 from dataclasses import replace
 
-from PyQt5.QtCore import QTimer, pyqtSignal
+from PyQt5.QtCore import QEvent, QObject, QTimer, pyqtSignal
 from PyQt5.QtWidgets import (
     QActionGroup, QHBoxLayout, QLabel, QMenu, QTabWidget, QToolButton, QVBoxLayout, QWidget,
 )
@@ -30,12 +30,16 @@ LAYER_NAMES = {
     "mate": "Mating part",
     "clearance": "Clearance colouring",
     "projected": "Projected zone",
+    "points": "Measured points",
+    "median_line": "Median line",
+    "envelopes": "Mating envelopes",
     "labels": "Labels",
     "readouts": "Numbers on the picture",
     "legend": "Colour legend",
 }
 HIDDEN_IN_WINDOW = {"readouts"}
 MESHLESS = {"labels", "readouts", "legend"}  # layers add_to_plotter draws as text, not meshes  # the window's readout table shows these numbers already
+WINDOW_CENTRE = (0.0, 0.05)  # camera window centre in the window: centred, a little low (labels above)
 VIEW_NAMES = {"iso": "Iso", "top": "Top (through A)", "section": "Section"}
 
 
@@ -99,9 +103,22 @@ class View3D(QWidget):
         self._pending = False
         self.closed = False
         self.last_update_s = 0.0
+        self.cut_iso = True  # iso drawn cut open at the plane of the tilt, as the report draws it
+        self._cut = None  # is the scene shown cut open?
+        self._shown_cache = None  # ((id of the scene, view), scene, scene as shown)
+        self._resize_filter = _OnResize(self._place_scalar_bar)
+        self.plotter.interactor.installEventFilter(self._resize_filter)
         model.statesChanged.connect(self.schedule)
         model.sceneChanged.connect(self.schedule)
         model.focusChanged.connect(self.schedule)
+        model.inspectionChanged.connect(self.schedule)
+        model.inspectionBusy.connect(self._busy)
+
+    def _busy(self, on: bool) -> None:
+        if on:
+            self.caption.setText("computing the inspection…")
+        elif self.current is not None:
+            self.caption.setText(self.current.caption)
 
     # ------------------------------------------------------------ building
 
@@ -111,10 +128,14 @@ class View3D(QWidget):
             QTimer.singleShot(0, self.update_now)
 
     def build(self):
-        """The Scene3D of the focus at the current what-if states."""
+        """The Scene3D of the focus at the current what-if states; for an inspection the scene
+        of its result (None while none is there: the last view stays)."""
         m = self.model
         kind, key = m.focus
         s = self.scene3d_mod
+        if kind == "inspection":
+            insp = m.shown_inspection()
+            return None if insp is None else s.build_inspection_scene(m.result, insp)
         if kind == "mate":
             return s.build_mate_scene(m.result, key, states=dict(m.states))
         return s.build_feature_scene(m.result, key, state=m.states[key])
@@ -125,6 +146,8 @@ class View3D(QWidget):
             return
         t0 = time.perf_counter()
         sc3 = self.build()
+        if sc3 is None:
+            return
         self.show_scene(sc3)
         self.last_update_s = time.perf_counter() - t0
 
@@ -141,15 +164,20 @@ class View3D(QWidget):
         self.plotter.render()
         self.rendered.emit()
 
-    def _shown(self):
-        """The scene as drawn from the current camera: the section view cuts it."""
-        if self.current_view == "section":
-            return self.scene3d_mod.section_cut(self.current)
-        return self.current
+    def _shown(self, view: str | None = None):
+        """The scene as drawn from the camera ``view`` (:func:`viewer.scene3d.view_scene`: cut open
+        at the plane of the tilt for iso and section, whole from the top)."""
+        view = view or self.current_view
+        if view == "iso" and not self.cut_iso:
+            return self.current
+        key = (id(self.current), view)
+        if self._shown_cache is None or self._shown_cache[0] != key or self._shown_cache[1] is not self.current:
+            self._shown_cache = (key, self.current, self.scene3d_mod.view_scene(self.current, view))
+        return self._shown_cache[2]
 
     def _signature(self, shown) -> tuple:
         return (tuple((n, tuple(it.name for it in items)) for n, items in shown.layers.items()),
-                frozenset(self.visible), self.current_view == "section")
+                frozenset(self.visible), shown is not self.current)
 
     def _update_in_place(self) -> bool:
         """Same focus, same layers, same meshes by name: hand the new meshes to the existing
@@ -181,7 +209,7 @@ class View3D(QWidget):
         self._update_legend(shown)
         return True
 
-    def _readd(self) -> None:
+    def _readd(self, shown=None) -> None:
         p = self.plotter
         for title in list(p.scalar_bars.keys()):  # pyvista keeps a registry of its bars
             p.remove_scalar_bar(title, render=False)
@@ -190,13 +218,33 @@ class View3D(QWidget):
         for actors in self.actors.values():
             for a in actors:
                 p.remove_actor(a, render=False)
-        shown = self._shown()
+        shown = shown if shown is not None else self._shown()
+        self._cut = shown is not self.current
         added = self.scene3d_mod.add_to_plotter(p, shown, set(self.visible)) or {}
         self.actors = {k: [a for a in v if a is not None] for k, v in added.items()}
         # the legend box is unreadably small in a window-sized view: the same rows are shown as
         # Qt text under the view; the clearance colour bar stays in the picture
         self._sig = self._signature(shown)
         self._update_legend(shown)
+        self._place_scalar_bar()
+
+    def _place_scalar_bar(self) -> None:
+        """Keep the colour bar and its title inside the view: the title is centred over the bar
+        and is wider than it, so the bar moves left until the title's right end clears the edge."""
+        bars = list(self.plotter.scalar_bars.values()) if not self.closed else []
+        if not bars:
+            return
+        import vtk
+
+        w = max(int(self.plotter.window_size[0]), 1)
+        for bar in bars:
+            bb = [0, 0, 0, 0]
+            vtk.vtkTextRenderer().GetBoundingBox(bar.GetTitleTextProperty(), bar.GetTitle(), bb, 72)
+            title_w = (bb[1] - bb[0] + 1) / w
+            width = bar.GetWidth()
+            margin = 0.015
+            x = min(0.90, 1.0 - margin - width / 2 - title_w / 2)
+            bar.SetPosition(max(0.5, x), bar.GetPosition()[1])
 
     def _update_legend(self, shown) -> None:
         p = self.plotter
@@ -216,21 +264,15 @@ class View3D(QWidget):
     def set_view(self, view: str, render: bool = True) -> None:
         if self.current is None or self.closed or view not in self.current.cameras:
             return
-        cut_changed = (view == "section") != (self.current_view == "section")
         self.current_view = view
-        if cut_changed:
-            self._readd()
-        p = self.plotter
-        p.camera_position = self.current.cameras[view]
-        scale = self.current.parallel_scale.get(view)
-        p.camera.parallel_projection = scale is not None
-        if scale is not None:
-            p.camera.parallel_scale = scale
-        else:
-            p.camera.view_angle = 30.0
-        p.reset_camera_clipping_range()
+        shown = self._shown(view)
+        if (shown is not self.current) != self._cut:
+            self._readd(shown)
+        # the scene's camera leaves the top-left corner to the numbers on the picture; the window
+        # shows them in the table instead, so the picture is centred (the colour bar keeps its side)
+        self.scene3d_mod.apply_view(self.plotter, replace(self.current, window_centre=WINDOW_CENTRE), view)
         if render:
-            p.render()
+            self.plotter.render()
 
     def set_layer(self, name: str, on: bool) -> None:
         (self.visible.add if on else self.visible.discard)(name)
@@ -246,6 +288,19 @@ class View3D(QWidget):
         if not self.closed:
             self.closed = True
             self.plotter.close()
+
+
+class _OnResize(QObject):
+    """Event filter: calls ``fn`` after its widget is resized."""
+
+    def __init__(self, fn):
+        super().__init__()
+        self.fn = fn
+
+    def eventFilter(self, obj, event):
+        if event.type() == QEvent.Resize:
+            QTimer.singleShot(0, self.fn)
+        return False
 
 
 def _html(text: str) -> str:

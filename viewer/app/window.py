@@ -12,19 +12,21 @@ from pathlib import Path
 from PyQt5.QtCore import QObject, QSettings, Qt, QThread, QTimer, pyqtSignal
 from PyQt5.QtGui import QKeySequence
 from PyQt5.QtWidgets import (
-    QAction, QFileDialog, QLabel, QMainWindow, QMessageBox, QProgressDialog, QSplitter, QTabWidget,
-    QVBoxLayout, QWidget,
+    QAction, QFileDialog, QLabel, QMainWindow, QMessageBox, QProgressDialog, QScrollArea, QSplitter,
+    QTabWidget, QVBoxLayout, QWidget,
 )
 
 from geom.readout import CAUTION
 from geom.scenefile import SceneError, save
 
+from . import glyphs
 from .model import SceneModel
 from .panels import ContentsList, FeatureForm, MateForm, MessageBar, ReadoutTable, SceneForm, VerdictBanner, WhatIfPanel
 
 APP_NAME = "matezone"
 RECENT_MAX = 8
 FILE_FILTER = "Scene files (*.toml);;All files (*)"
+POINTS_FILTER = "Measured points (*.csv);;All files (*)"
 
 
 def settings() -> QSettings:
@@ -84,6 +86,10 @@ class MainWindow(QMainWindow):
 
     def __init__(self, model: SceneModel | None = None, with_views: bool = True):
         super().__init__()
+        if "found" not in glyphs._state:
+            from PyQt5.QtWidgets import QApplication
+
+            glyphs.setup(QApplication.instance())
         self.model = model or SceneModel()
         self.setWindowTitle(APP_NAME)
         self.resize(1560, 960)
@@ -92,6 +98,7 @@ class MainWindow(QMainWindow):
         self._worker: ReportWorker | None = None
         self.progress: QProgressDialog | None = None
         self.last_export: str | None = None
+        self._last_focus_kind = None
 
         m = self.model
         # --- left column: contents, what-if / edit tabs, messages
@@ -115,7 +122,11 @@ class MainWindow(QMainWindow):
         el = QVBoxLayout(ed)
         el.addWidget(self.mate_form)
         el.addWidget(self.feature_form, 1)
-        self.tabs.addTab(ed, "Edit feature")
+        scroll = QScrollArea()  # the form is taller than a small screen
+        scroll.setWidgetResizable(True)
+        scroll.setFrameShape(QScrollArea.NoFrame)
+        scroll.setWidget(ed)
+        self.tabs.addTab(scroll, "Edit feature")
         self.scene_form = SceneForm(m)
         sw = QWidget()
         sl = QVBoxLayout(sw)
@@ -159,6 +170,12 @@ class MainWindow(QMainWindow):
         self.setCentralWidget(split)
 
         self._menus()
+        # the Edit-feature tab's button is for the feature it shows (for a mate: its hole)
+        self.feature_form.load_button.clicked.connect(lambda: self.load_points_dialog(fid=self.feature_form.fid))
+        self.whatif.loadRequested.connect(self.act["load_points"].trigger)
+        m.focusChanged.connect(self._load_action_text)
+        m.sceneChanged.connect(self._load_action_text)
+        self._load_action_text()
         m.pathChanged.connect(lambda _p: self._title())
         m.dirtyChanged.connect(lambda _d: self._title())
         m.sceneChanged.connect(self._title)
@@ -190,6 +207,9 @@ class MainWindow(QMainWindow):
         fm.addSeparator()
         add(fm, "save", "&Save", self.file_save, QKeySequence.Save)
         add(fm, "save_as", "Save &as…", self.file_save_as, QKeySequence.SaveAs)
+        fm.addSeparator()
+        add(fm, "load_points", "&Load measured points…", self.load_points_dialog, "Ctrl+L",
+            "Read a CSV of points measured on the selected feature and judge the produced part")
         fm.addSeparator()
         add(fm, "export_report", "Export &report…", self.export_report, "Ctrl+Shift+R",
             "Pictures, PDF and results.json, as `matezone report` writes them")
@@ -232,9 +252,38 @@ class MainWindow(QMainWindow):
         self.setWindowTitle(f"{m.label}[*] – {m.scene.title} – {APP_NAME}")
         self.setWindowModified(m.dirty)
 
+    def points_target(self) -> str | None:
+        """The feature "Load measured points…" reads points for: the feature or inspection in
+        focus (None for a mate: pick one of its features first)."""
+        kind, key = self.model.focus
+        return key if kind in ("feature", "inspection") else None
+
+    def _load_action_text(self) -> None:
+        fid = self.points_target()
+        a = self.act["load_points"]
+        a.setEnabled(fid is not None)
+        a.setText(f"&Load measured points for {fid}…" if fid else "&Load measured points… (select a feature)")
+
+    def load_points_dialog(self, path: str | None = None, fid: str | None = None) -> None:
+        """Ask for a CSV and inspect the selected feature from it (in the worker thread)."""
+        fid = fid or self.points_target()
+        if fid is None:
+            self.model.message.emit("error", "select a feature (or its inspection) to load measured points for")
+            return
+        if path is None:
+            start = str(Path(self.model.path).parent) if self.model.path else str(Path.cwd())
+            path, _ = QFileDialog.getOpenFileName(self, f"Measured points for {fid}", start, POINTS_FILTER)
+        if path:
+            self.model.load_points(fid, path)
+
     def _focus_tab(self) -> None:
         kind, _ = self.model.focus
         self.mate_form.setVisible(kind == "mate")
+        # the first tab holds the what-if controls, or for an inspection its data and bonus basis
+        self.tabs.setTabText(0, "Inspection" if kind == "inspection" else "What-if")
+        if kind == "inspection" and kind != self._last_focus_kind:
+            self.tabs.setCurrentIndex(0)
+        self._last_focus_kind = kind
 
     # ------------------------------------------------------------ files
 
@@ -417,6 +466,7 @@ class MainWindow(QMainWindow):
                 self._worker.cancel()
             self._thread.quit()
             self._thread.wait()
+        self.model.stop_worker()
         if self.view3d is not None:
             self.view3d.close_plotter()
         event.accept()
