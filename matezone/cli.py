@@ -93,6 +93,10 @@ def build_parser() -> argparse.ArgumentParser:
     r.add_argument("--size", action="append", default=[], metavar="ID=VALUE",
                    help="produced size of a feature for the what-if pictures (default: worst case)")
     r.add_argument("--view", default="iso", help="camera of the 3D picture: iso, top, section (default iso)")
+    r.add_argument("--points", action="append", default=[], metavar="ID=CSV",
+                   help="measured points of a feature (CSV x,y,z[,section]); adds or replaces its inspection page")
+    r.add_argument("--bonus-basis", default="unrelated", metavar="unrelated|related",
+                   help="envelope the inspection bonus is taken from (default: unrelated)")
     r.set_defaults(func=cmd_report)
 
     i = sub.add_parser("inspect", help="judge a produced part from inspection values or CMM points")
@@ -130,4 +134,8 @@ def main(argv: list[str] | None = None) -> int:
 
 
 if __name__ == "__main__":
-    sys.exit(main())
+    # Run through the package module, not this __main__ copy, so that the UserError raised by
+    # the commands (imported from matezone.cli) is the class caught in main().
+    from matezone.cli import main as _main
+
+    sys.exit(_main())

@@ -181,3 +181,11 @@ def test_byte_order_mark_is_accepted(tmp_path):
     f = tmp_path / "bom.toml"
     f.write_bytes(b"\xef\xbb\xbf" + GOOD.encode())
     assert load(f).features[0].id == "bore"
+
+
+def test_python_dash_m_reports_user_errors_cleanly(tmp_path):
+    # `python -m matezone.cli` runs the module as __main__; errors raised by the commands must
+    # still be caught as one message with exit 2 (a second copy of the module would miss them).
+    p = subprocess.run([sys.executable, "-m", "matezone.cli", "inspect", str(ROOT / "scenes" / "cap_bore_inspection.toml"),
+                        "--feature", "no-such-feature"], capture_output=True, text=True)
+    assert p.returncode == 2 and "Traceback" not in p.stderr and "no-such-feature" in p.stderr

@@ -1,0 +1,7 @@
+"""``python -m matezone``: the same as the ``matezone`` command."""
+
+import sys
+
+from matezone.cli import main
+
+sys.exit(main())
