@@ -1,5 +1,7 @@
-"""``matezone report SCENE --out DIR [--size ID=VALUE ...] [--view NAME]``: write the pictures,
-the PDF evidence report and results.json without a display."""
+"""``matezone report SCENE --out DIR [--size ID=VALUE ...] [--view NAME] [--points ID=CSV ...]
+[--bonus-basis unrelated|related]``: write the pictures, the PDF evidence report and results.json
+without a display. Every feature with ``[feature.measured]`` data (or ``--points``) gets an
+inspection page; fasteners get a page of their own."""
 
 from __future__ import annotations
 
@@ -43,15 +45,53 @@ def parse_sizes(specs: list[str], scene) -> dict[str, float]:
     return sizes
 
 
+def parse_points(specs: list[str], scene) -> dict[str, str]:
+    """``["id=scan.csv", ...]`` -> {id: path}; the files themselves are read by geom.pointsfile."""
+    ids = [f.id for f in scene.features]
+    points: dict[str, str] = {}
+    for spec in specs:
+        fid, sep, path = spec.partition("=")
+        fid, path = fid.strip(), path.strip()
+        if not sep or not fid or not path:
+            raise UserError(f"--points {spec!r}: expected ID=CSV, e.g. --points {ids[0]}=scan.csv")
+        if fid not in ids:
+            raise UserError(f"--points {spec!r}: no feature has the id {fid!r}; the scene's features are: "
+                            + ", ".join(ids))
+        if fid in points:
+            raise UserError(f"--points {spec!r}: points for {fid!r} are given twice")
+        points[fid] = path
+    return points
+
+
+def inspect_all(scene, points: dict[str, str], bonus_basis: str) -> dict:
+    """Inspect every measured feature before anything is written; bad input -> one message."""
+    from geom.fitting import FitError
+    from geom.inspect import InspectError
+    from geom.pointsfile import PointsError
+    from viewer.report import scene_inspections
+
+    try:
+        return scene_inspections(scene, points, bonus_basis)
+    except (InspectError, PointsError, FitError) as e:
+        raise UserError(str(e)) from None
+
+
 def run(args, load) -> int:
     from geom.analysis import analyse_scene
 
     scene = load(args.scene)
     sizes = parse_sizes(list(args.size or []), scene)
+    points = parse_points(list(getattr(args, "points", None) or []), scene)
+    from geom.inspect import BONUS_BASES
+
+    basis = getattr(args, "bonus_basis", None) or "unrelated"
+    if basis not in BONUS_BASES:
+        raise UserError(f"--bonus-basis {basis!r}: expected one of {', '.join(BONUS_BASES)}")
     from viewer.scene3d import VIEWS
 
     if args.view not in VIEWS:
         raise UserError(f"--view {args.view!r}: expected one of {', '.join(VIEWS)}")
+    inspections = inspect_all(scene, points, basis)
     out = Path(args.out)
     if out.exists() and not out.is_dir():
         raise UserError(f"--out {args.out!r}: exists and is not a folder")
@@ -64,6 +104,7 @@ def run(args, load) -> int:
     from viewer.report import write_report
 
     res = analyse_scene(scene)
-    written = write_report(res, out, sizes=sizes, view=args.view, progress=lambda s: print(s, flush=True))
+    written = write_report(res, out, sizes=sizes, view=args.view, progress=lambda s: print(s, flush=True),
+                           inspections=inspections)
     print(f"wrote {len(written)} files to {out}")
     return 0

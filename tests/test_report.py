@@ -13,6 +13,7 @@ from pypdf import PdfReader
 from geom import analyse_scene, load, result_to_json
 from geom.readout import CAUTION
 from matezone.cli import main
+from viewer.report import FASTENERS_PER_PAGE
 
 ROOT = Path(__file__).resolve().parent.parent
 SCENES = sorted((ROOT / "scenes").glob("*.toml"))
@@ -67,6 +68,7 @@ def test_results_json_equals_analyze_json(bracket_report):
     expect = result_to_json(analyse_scene(load(BRACKET)))
     expect["caution"] = CAUTION
     got = json.loads((out / "results.json").read_text(encoding="utf-8"))
+    assert got.pop("inspections") == {}  # no feature of this scene has measured data
     assert got == json.loads(json.dumps(expect))
     # and the same as `matezone analyze --json` prints
     code, stdout, _ = _run("analyze", str(BRACKET), "--json")
@@ -136,10 +138,16 @@ def test_every_demo_scene_produces_its_report(scene, tmp_path):
     assert code == 0, err
     sc = load(scene)
     mated = {m.hole for m in sc.mates} | {m.pin for m in sc.mates}
-    pages = len(sc.mates) + len([f for f in sc.features if f.id not in mated])
+    fit_pages = len(sc.mates) + len([f for f in sc.features if f.id not in mated])
+    measured = [f for f in sc.features if f.measured is not None]
+    fastener_pages = -(-len(sc.fasteners) // FASTENERS_PER_PAGE)
+    pages = len(measured) + fit_pages + fastener_pages
     assert len(PdfReader(str(tmp_path / "report.pdf")).pages) == pages
-    assert len(list(tmp_path.glob("*_3d_iso.png"))) == pages
-    assert len(list(tmp_path.glob("*.svg"))) == 3 * pages
+    assert len(list(tmp_path.glob("*_3d_iso.png"))) == fit_pages + len(measured)
+    assert len(list(tmp_path.glob("inspection_*_3d_section.png"))) == len(measured)
+    assert len(list(tmp_path.glob("*.svg"))) == 3 * fit_pages + len(sc.fasteners)
+    data = json.loads((tmp_path / "results.json").read_text(encoding="utf-8"))
+    assert sorted(data["inspections"]) == sorted(f.id for f in measured)
     text = _squash(_pdf_text(tmp_path / "report.pdf"))
     assert _squash(CAUTION) in text
     res = analyse_scene(sc)

@@ -214,46 +214,56 @@ def _requirement_parts(item: Item, units) -> tuple[str, str]:
     return "; ".join(chars), "; ".join(tols)
 
 
+def _head(p: _Page, res: SceneResult, title: str, subtitle: str, char: str, tol: str, page_no: int,
+          pages: int) -> float:
+    """Page header and the title block (from the scene's ``[report]`` table); returns the y below it."""
+    sc = res.scene
+    u, std = sc.units, sc.standard
+    rep = dict(sc.report)
+    x0, W = MARGIN, PAGE[0] - 2 * MARGIN
+    # ---------------------------------------------------------------- header
+    p.text(x0, 0.34, title, fontsize=13, weight="bold")
+    p.text(x0 + (1.45 if len(title) <= 12 else 0.135 * len(title) + 0.1), 0.37, subtitle, fontsize=8.5)
+    p.text(x0 + W, 0.34, f"report no. {rep.get('report_number') or '—'}", fontsize=9, ha="right", weight="bold")
+    p.text(x0 + W, 0.55, f"page {page_no} of {pages}", fontsize=7.5, ha="right")
+    p.text(x0, 0.58, sc.title + (f"   ({Path(sc.source).name})" if sc.source else ""), fontsize=8.5)
+    # ---------------------------------------------------------------- title block
+    y, h = 0.82, 0.32
+    rows = [
+        [("report number", rep.get("report_number"), 1.55), ("part number", rep.get("part"), 1.45),
+         ("revision", rep.get("revision"), 0.62), ("part name", rep.get("part_name"), 2.15),
+         ("supplier", rep.get("supplier"), None)],
+        [("lot", rep.get("lot"), 1.55), ("serial", rep.get("serial"), 1.45), ("quantity", rep.get("quantity"), 0.62),
+         ("date", rep.get("date"), 1.05), ("prepared by", rep.get("prepared_by"), None)],
+        [("requirement (as stated)", rep.get("requirement"), 4.6), ("drawing zone", rep.get("drawing_zone"), 0.9),
+         ("units / standard", f"{u.value} / {std.value.upper()}", None)],
+        [("characteristic", char, 2.45), ("tolerance (feature control frame)", tol, 2.6),
+         ("how it was found", rep.get("found_by"), None)],
+        [("remarks", rep.get("remarks"), None)],
+    ]
+    for row in rows:
+        x = x0
+        for label, value, w in row:
+            w = (x0 + W - x) if w is None else w
+            p.field(x, y, w, h, label, value)
+            x += w
+        y += h
+    p.box(x0, 0.82, W, y - 0.82, lw=1.2)
+    return y
+
+
 def build_page(res: SceneResult, item: Item, states, image3d: np.ndarray | None, page_no: int, pages: int,
                view: str = "iso") -> Figure:
     """One evidence page (A4 portrait) for a mate or a lone feature."""
     sc = res.scene
     u, std = sc.units, sc.standard
-    rep = dict(sc.report)
     sub = item.subject
     with F.style_context():
         fig = Figure(figsize=PAGE, facecolor=S.BACKGROUND)
         p = _Page(fig)
         x0, W = MARGIN, PAGE[0] - 2 * MARGIN
-        # ---------------------------------------------------------------- header
-        p.text(x0, 0.34, "FIT EVIDENCE", fontsize=13, weight="bold")
-        p.text(x0 + 1.45, 0.37, "worst-case mating of toleranced holes and pins", fontsize=8.5)
-        p.text(x0 + W, 0.34, f"report no. {rep.get('report_number') or '—'}", fontsize=9, ha="right", weight="bold")
-        p.text(x0 + W, 0.55, f"page {page_no} of {pages}", fontsize=7.5, ha="right")
-        p.text(x0, 0.58, sc.title + (f"   ({Path(sc.source).name})" if sc.source else ""), fontsize=8.5)
-        # ---------------------------------------------------------------- title block
-        y, h = 0.82, 0.32
         char, tol = _requirement_parts(item, u)
-        rows = [
-            [("report number", rep.get("report_number"), 1.55), ("part number", rep.get("part"), 1.45),
-             ("revision", rep.get("revision"), 0.62), ("part name", rep.get("part_name"), 2.15),
-             ("supplier", rep.get("supplier"), None)],
-            [("lot", rep.get("lot"), 1.55), ("serial", rep.get("serial"), 1.45), ("quantity", rep.get("quantity"), 0.62),
-             ("date", rep.get("date"), 1.05), ("prepared by", rep.get("prepared_by"), None)],
-            [("requirement (as stated)", rep.get("requirement"), 4.6), ("drawing zone", rep.get("drawing_zone"), 0.9),
-             ("units / standard", f"{u.value} / {std.value.upper()}", None)],
-            [("characteristic", char, 2.45), ("tolerance (feature control frame)", tol, 2.6),
-             ("how it was found", rep.get("found_by"), None)],
-            [("remarks", rep.get("remarks"), None)],
-        ]
-        for row in rows:
-            x = x0
-            for label, value, w in row:
-                w = (x0 + W - x) if w is None else w
-                p.field(x, y, w, h, label, value)
-                x += w
-            y += h
-        p.box(x0, 0.82, W, y - 0.82, lw=1.2)
+        y = _head(p, res, "FIT EVIDENCE", "worst-case mating of toleranced holes and pins", char, tol, page_no, pages)
         # ---------------------------------------------------------------- subject and verdict
         y += 0.08
         if sub.is_mate:
@@ -418,11 +428,23 @@ def crop_to_content(img: np.ndarray, aspect: float = PAGE_3D_ASPECT, pad: float 
 def page_image_3d(scene3d_obj, view: str) -> np.ndarray:
     """The 3D picture for the page: the model and its 3D labels without the text overlays (the
     page prints those numbers in its table), cropped to the model so it reads at page size."""
+    return crop_to_content(_bare_render(scene3d_obj, view))
+
+
+def _bare_render(scene3d_obj, view: str) -> np.ndarray:
     from viewer import scene3d
 
     visible = set(scene3d.LAYERS) - set(scene3d.HIDDEN_BY_DEFAULT) - {"readouts", "legend"}
-    img = scene3d.render_image(scene3d_obj, None, view=view, size=(1600, 1200), visible=visible)
-    return crop_to_content(img)
+    return scene3d.render_image(scene3d_obj, None, view=view, size=(1600, 1200), visible=visible)
+
+
+def inspection_images(scene3d_obj, view: str) -> list[tuple[str, np.ndarray]]:
+    """The inspection page's pictures: the report's camera and the section in the plane of the
+    tilt (where the median line's drift shows), without text overlays (the page prints the
+    numbers and the colour key); cropped on the page."""
+    views = list(dict.fromkeys((view, "section")))
+    names = {"iso": "3D view", "top": "view from above, along the axis", "section": "section in the plane of the tilt"}
+    return [(names.get(v, v), _bare_render(scene3d_obj, v)) for v in views]
 
 
 # ------------------------------------------------------------------------------------ writing
@@ -432,18 +454,25 @@ Progress = Callable[[str], None]
 
 
 def write_report(res: SceneResult, out_dir, sizes: dict[str, float] | None = None, view: str = "iso",
-                 progress: Progress | None = None) -> list[Path]:
+                 progress: Progress | None = None, inspections: dict | None = None) -> list[Path]:
     """Write every file of the report into ``out_dir``; returns the paths written.
 
     ``sizes``: produced sizes (feature id -> size) for the what-if pictures; the rest stays at the
     worst case. ``view``: camera of the 3D picture (one of viewer.scene3d.VIEWS).
+    ``inspections``: feature id -> :class:`geom.inspect.InspectionResult`, one inspection page
+    each (first in the PDF); None inspects every feature with ``[feature.measured]`` data.
+    Fasteners of the scene get their own page(s) at the end.
     """
     from viewer import scene3d
 
     out = Path(out_dir)
     out.mkdir(parents=True, exist_ok=True)
     items = report_items(res)
-    steps = len(items) * (1 + len(VIEW_FILES)) + 2
+    if inspections is None:
+        inspections = scene_inspections(res.scene)
+    fids = list(res.fasteners)
+    fastener_pages = [fids[i:i + FASTENERS_PER_PAGE] for i in range(0, len(fids), FASTENERS_PER_PAGE)]
+    steps = len(items) * (1 + len(VIEW_FILES)) + len(inspections) + len(fids) + 2
     n = 0
     written: list[Path] = []
 
@@ -476,21 +505,667 @@ def write_report(res: SceneResult, out_dir, sizes: dict[str, float] | None = Non
                 F.save_figure(fig, q)
             written += paths
             say(f"{item.label}: {name} view", paths)
+    insp_pages = {}
+    for fid, insp in inspections.items():
+        s3 = scene3d.build_inspection_scene(res, insp)
+        key = f"inspection_{slug(fid)}"
+        pngs = [out / f"{key}_3d_{v}.png" for v in dict.fromkeys((view, "section"))]
+        for q, v in zip(pngs, dict.fromkeys((view, "section"))):
+            scene3d.render_image(s3, q, view=v, size=(1600, 1200))
+        written += pngs
+        insp_pages[fid] = (inspection_images(s3, view), s3.caption, s3.legend, tuple(q.name for q in pngs))
+        say(f"inspection {fid}: 3D views", pngs)
+    fastener_files = {}
+    for fid in fids:
+        fig = fastener_figure(res, fid)
+        paths = [out / f"fastener_{slug(fid)}.{ext}" for ext in ("png", "svg")]
+        for q in paths:
+            F.save_figure(fig, q)
+        written += paths
+        fastener_files[fid] = paths[0].name
+        say(f"fastener {fid}: schematic", paths)
     pdf = out / "report.pdf"
     rep = dict(res.scene.report)
+    pages = len(inspections) + len(items) + len(fastener_pages)
     with F.style_context():
         with PdfPages(pdf, metadata={"Title": f"Fit evidence: {res.scene.title}",
                                      "Subject": rep.get("report_number", ""),
                                      "Creator": "matezone report"}) as pp:
-            for i, item in enumerate(items, 1):
-                fig = build_page(res, item, page_states[item.file_key], images3d[item.file_key], i, len(items), view)
+            page = 0
+            for fid, insp in inspections.items():
+                page += 1
+                imgs, caption, legend, names = insp_pages[fid]
+                pp.savefig(build_inspection_page(res, insp, imgs, page, pages, caption, legend, names))
+            for item in items:
+                page += 1
+                fig = build_page(res, item, page_states[item.file_key], images3d[item.file_key], page, pages, view)
                 pp.savefig(fig)
+            for group in fastener_pages:
+                page += 1
+                pp.savefig(build_fastener_page(res, group, page, pages, fastener_files))
     written.append(pdf)
-    say(f"report ({len(items)} page{'s' if len(items) != 1 else ''})", [pdf])
+    say(f"report ({pages} page{'s' if pages != 1 else ''})", [pdf])
     js = out / "results.json"
     data = result_to_json(res)
+    from geom.inspect import inspection_to_json
+
+    data["inspections"] = {fid: inspection_to_json(insp) for fid, insp in inspections.items()}
     data["caution"] = CAUTION
     js.write_text(json.dumps(data, indent=2, ensure_ascii=False) + "\n", encoding="utf-8")
     written.append(js)
     say("numbers", [js])
     return written
+
+
+# ------------------------------------------------------------------------------ inspection pages
+
+INSPECTED_CHECKS = ("size", "axis", "surface")
+SECTION_ROWS = 12  # longest section table printed whole; longer ones are condensed
+CHECK_MEANING = {
+    "size": "two-point local sizes within the limits; where the envelope applies, the unrelated mating "
+            "envelope not beyond the MMC size",
+    "axis": "the derived median line (section centres) within the tolerance allowed, t + bonus",
+    "surface": "the related envelope (held to the datums) does not violate the virtual condition: "
+               "what a functional gauge checks",
+}
+
+
+def inspected_ids(scene, points: dict[str, str] | None = None) -> list[str]:
+    """Features to inspect, in scene order: those with ``[feature.measured]`` data and those
+    given measured points (``points``: feature id -> CSV path)."""
+    given = set(points or {})
+    return [f.id for f in scene.features if f.measured is not None or f.id in given]
+
+
+def scene_inspections(scene, points: dict[str, str] | None = None, bonus_basis: str = "unrelated") -> dict:
+    """:func:`geom.inspect.inspect_feature` for every inspected feature (feature id -> result).
+
+    Errors of geom (``InspectError``, ``PointsError``, ``FitError``) pass through unchanged."""
+    from geom.inspect import inspect_feature
+
+    points = points or {}
+    return {fid: inspect_feature(scene, fid, points=points.get(fid), bonus_basis=bonus_basis)
+            for fid in inspected_ids(scene, points)}
+
+
+def _check_word(c) -> tuple[str, str]:
+    """Verdict word and colour of a geom.inspect Check."""
+    if c.conforms is None:
+        return "NOT EVALUATED", S.NOT_PROVEN
+    if c.conforms:
+        return "CONFORMS", (S.OK if not c.outcome.startswith("not proven") else S.NOT_PROVEN)
+    return "FAILS", S.INTERFERENCE
+
+
+def inspection_headline(insp) -> tuple[str, bool]:
+    """(one-line verdict for the page's box, whether a reading fails)."""
+    checks = [getattr(insp, f"{n}_check") for n in INSPECTED_CHECKS]
+    failed = [c for c in checks if c.conforms is False]
+    if failed:
+        parts = [f"{c.name.upper()} READING FAILS: {c.detail} ({c.outcome})" for c in failed]
+        return "✗ " + "; ".join(parts), True
+    missing = [c.name for c in checks if c.conforms is None]
+    if missing:
+        return f"✓ no reading fails; not evaluated: {', '.join(missing)}", False
+    return "✓ the size, axis and surface readings all conform", False
+
+
+def condensed_sections(sections, n_max: int = SECTION_ROWS) -> list[int]:
+    """Indices of the sections to print, in order: all of them when there are at most ``n_max``,
+    otherwise the first and last, those with the extreme least-squares and mating diameters,
+    local sizes and roundness, and evenly spaced others up to ``n_max``."""
+    n = len(sections)
+    if n <= n_max:
+        return list(range(n))
+    keep = {0, n - 1}
+    for key in ("ls_diameter", "mating_diameter", "local_min", "local_max", "roundness"):
+        vals = [getattr(s, key) for s in sections]
+        keep.add(int(np.argmin(vals)))
+        keep.add(int(np.argmax(vals)))
+    for i in np.linspace(0, n - 1, n_max).round().astype(int):
+        if len(keep) >= n_max:
+            break
+        keep.add(int(i))
+    return sorted(keep)
+
+
+def _inspection_subject(insp) -> str:
+    f = insp.feature
+    u = insp.units
+    who = f"{f.kind.value.capitalize()} '{f.id}'{' (' + f.name + ')' if f.name else ''} as produced"
+    if insp.source == "points" and insp.points is not None:
+        P = insp.points
+        src = Path(insp.source_file).name if insp.source_file else "points"
+        how = (f"{len(P)} measured points in {len(insp.sections)} sections from {src}, "
+               f"z = {u.fmt(P[:, 2].min())} .. {u.fmt(P[:, 2].max())} {u.value}")
+    else:
+        how = "inspection values typed into the scene's [feature.measured] table"
+    unc = (f"; U = {u.fmt(insp.uncertainty)} {u.value} (k = 2)" if insp.uncertainty is not None
+           else "; no measurement uncertainty U given")
+    return f"{who}: {how}{unc}"
+
+
+def _table(p: _Page, x: float, y: float, widths, rows, fs: float, head_fs: float | None = None,
+           aligns=None, colours=None, shade: bool = True, rowh: float | None = None, gid: str | None = None) -> float:
+    """A small table: the first row is the heading; returns the y below it."""
+    rowh = rowh or fs * 0.0185
+    aligns = aligns or ["left"] + ["right"] * (len(widths) - 1)
+    total = sum(widths)
+    for r, row in enumerate(rows):
+        if r and shade and r % 2 == 1:
+            p.box(x, y - 0.012, total, rowh, lw=0, fill=True, fc="#EEF0F2", ec="none")
+        xx = x
+        for c, (w, cell) in enumerate(zip(widths, row)):
+            col = (colours[r][c] if colours and colours[r] and colours[r][c] else (GREY if r == 0 else S.TEXT))
+            kw = dict(fontsize=head_fs or fs, weight="bold") if r == 0 else dict(fontsize=fs)
+            if aligns[c] == "right":
+                p.text(xx + w - 0.05, y, cell, ha="right", color=col, **kw)
+            else:
+                p.text(xx + 0.03, y, cell, color=col, **kw)
+            xx += w
+        if r == 0:
+            p.line(x, y + rowh - 0.015, x + total, y + rowh - 0.015, lw=0.5)
+        y += rowh
+    return y
+
+
+def _sections_table(p: _Page, insp, x: float, y: float, w: float, fs: float) -> float:
+    u = insp.units
+    fmt = u.fmt
+    hole = insp.feature.kind is Kind.HOLE
+    secs = insp.sections
+    mate = "inscr. ⌀" if hole else "circ. ⌀"
+    rows = [("section", "z", "LS ⌀", mate, "local min", "local max", "round."), ]
+    idx = condensed_sections(secs)
+    for i in idx:
+        s = secs[i]
+        rows.append((s.label, fmt(s.z), fmt(s.ls_diameter), fmt(s.mating_diameter), fmt(s.local_min),
+                     fmt(s.local_max), fmt(s.roundness)))
+    widths = [0.5] + [(w - 0.5) / 6] * 6
+    y = _table(p, x, y, widths, rows, fs, gid="sections")
+    shown = len(idx)
+    note = (f"{shown} of {len(secs)} sections shown (first, last, the extremes of each column, evenly spaced "
+            "others); every section is in results.json. " if shown < len(secs) else "")
+    note += ("LS: least-squares circle; " + ("inscr.: largest inscribed circle; " if hole else
+             "circ.: smallest circumscribed circle; ")
+             + "local sizes: two-point, through the LS centre; round.: roundness, the radial range about the "
+             "LS centre.")
+    lines = textwrap.wrap(note, int(w * 72 / (fs * 0.85 * 0.5)))
+    p.text(x, y + 0.01, "\n".join(lines), fontsize=fs * 0.85, color=GREY, linespacing=1.15)
+    return y + 0.015 + 0.088 * len(lines)
+
+
+def _envelope_vs_ls(p: _Page, insp, x: float, y: float, w: float, fs: float) -> float:
+    """The envelopes (what the standard and a gauge use) beside the least-squares fit (a CMM's
+    usual default), every value from the InspectionResult."""
+    u = insp.units
+    fmt = u.fmt
+    ls = insp.least_squares
+    std = insp.standard
+    B = term("bonus", std)[0]
+    lmc = insp.least_material is not None
+    env_u = insp.least_material if lmc else insp.unrelated
+    env_r = insp.least_material_related if lmc else insp.related
+    short = "AMME" if lmc else "AME"
+    ax = insp.axis
+    axis_word, axis_col = _check_word(insp.axis_check)
+
+    def ls_cell(v):
+        return fmt(v) if ls is not None and v is not None else "—"
+
+    rows = [("", "envelopes (gauge)", "least squares (CMM)")]
+    cols = [None]
+    rows.append(("size", f"unrelated {short} ⌀{fmt(None if env_u is None else env_u.diameter)}",
+                 f"LS cylinder ⌀{ls_cell(None if ls is None else ls.size)}"))
+    cols.append(None)
+    rows.append(("held to datum", f"related {short} ⌀{fmt(None if env_r is None else env_r.diameter)}", "—"))
+    cols.append(None)
+    basis = f"{insp.bonus_basis} {short}"
+    rows.append((B, f"{fmt(insp.bonus)} (from the {basis})", ls_cell(None if ls is None else ls.bonus)))
+    cols.append(None)
+    rows.append(("tolerance allowed", fmt(insp.tolerance_allowed), ls_cell(None if ls is None else ls.tolerance_allowed)))
+    cols.append(None)
+    rows.append(("axis reading", f"{fmt(None if ax is None else ax.deviation)} (section centres)",
+                 f"{ls_cell(None if ls is None else ls.axis_deviation)}" + (" (LS cylinder axis)" if ls else "")))
+    cols.append(None)
+    if ls is not None and ls.axis_conforms is not None:
+        lw_, lc = ("CONFORMS", S.OK) if ls.axis_conforms else ("FAILS", S.INTERFERENCE)
+    else:
+        lw_, lc = "—", None
+    rows.append(("axis verdict", axis_word, lw_))
+    cols.append((None, axis_col, lc))
+    widths = [1.0, (w - 1.0) * 0.52, (w - 1.0) * 0.48]
+    y = _table(p, x, y, widths, rows, fs, aligns=["left", "left", "left"], colours=cols)
+    if ls is None:
+        note = "no measured points: the least-squares fit needs points (typed values only)."
+        p.text(x, y + 0.01, note, fontsize=fs * 0.85, color=GREY)
+        y += 0.1
+    return y
+
+
+def _wrap(text: str, width_in: float, fs: float, indent: str = "") -> list[str]:
+    return textwrap.wrap(text, max(6, int(width_in * 72 / (fs * 0.55))), subsequent_indent=indent)
+
+
+class _DryPage(_Page):
+    """Measures a layout: the same calls as :class:`_Page`, nothing drawn."""
+
+    def text(self, *a, **kw):
+        return None
+
+    def box(self, *a, **kw):
+        return None
+
+    def line(self, *a, **kw):
+        return None
+
+
+def _inspection_lower(p: _Page, insp, x0: float, y: float, W: float, fs: float) -> float:
+    """Sections | envelopes beside least squares and the bonus basis; the verdicts; the
+    explanation. Returns the y below."""
+    u = insp.units
+    colw = (W - 0.25) / 2
+    yl = yr = y
+    if insp.sections:
+        p.text(x0, yl, "SECTIONS (each ring of points)", fontsize=7, weight="bold")
+        yl = _sections_table(p, insp, x0, yl + 0.14, colw, fs)
+    xr = x0 + colw + 0.25 if insp.sections else x0
+    wr = colw if insp.sections else W
+    p.text(xr, yr, "ENVELOPES BESIDE LEAST SQUARES", fontsize=7, weight="bold")
+    yr = _envelope_vs_ls(p, insp, xr, yr + 0.14, wr, fs)
+    yr += 0.06
+    basis_words = {"unrelated": "unrelated envelope (any orientation; the default, ASME Y14.5-2009 and later, "
+                                "from memory)",
+                   "related": "related envelope (held to the datums; chosen with --bonus-basis related)"}
+    p.text(xr, yr, "BONUS BASIS AND TOLERANCE ALLOWED", fontsize=7, weight="bold")
+    yr += 0.14
+    lines = _wrap(f"bonus basis: {basis_words.get(insp.bonus_basis, insp.bonus_basis)}", wr, fs, "   ")
+    for x in insp.formulas:
+        lines += _wrap(x, wr, fs, "   ")
+    p.text(xr, yr, "\n".join(lines), fontsize=fs, linespacing=1.2, gid="formulas")
+    yr += 0.1 * len(lines) + 0.02
+    if insp.axis is not None:
+        al = _wrap(f"axis reading: {insp.axis.method}", wr, fs * 0.88, "   ")
+        p.text(xr, yr, "\n".join(al), fontsize=fs * 0.88, color=GREY, linespacing=1.15)
+        yr += 0.088 * len(al) + 0.02
+    y = max(yl, yr) + 0.06
+    # ---------------------------------------------------------------- verdicts
+    rule = (f"ISO 14253-1 decision rule, U = {u.fmt(insp.uncertainty)} {u.value} (k = 2): a verdict is proven "
+            "only when the value lies at least U inside the limit (conformance) or at least U beyond it "
+            "(nonconformance); within U of a limit neither is proven" if insp.uncertainty is not None else
+            "no uncertainty U given: decided on the measured values alone (ISO 14253-1 needs U)")
+    p.text(x0, y, "VERDICTS", fontsize=7, weight="bold")
+    rl = _wrap(rule, W - 0.75, fs * 0.9)
+    p.text(x0 + 0.75, y + 0.01, "\n".join(rl), fontsize=fs * 0.9, color=GREY, linespacing=1.15)
+    y += max(0.14, 0.09 * len(rl) + 0.04)
+    rows = [("reading", "what is checked", "measured against the limit", "on the values", "ISO 14253-1")]
+    cols = [None]
+    for n in INSPECTED_CHECKS:
+        c = getattr(insp, f"{n}_check")
+        word, cc = _check_word(c)
+        rows.append((n, CHECK_MEANING[n], c.detail, word, c.outcome))
+        cols.append((None, None, None, cc, cc))
+    widths = [0.55, 2.6, 2.3, 0.85, W - 6.3]
+    y = _wrapped_table(p, x0, y, widths, rows, fs, cols)
+    # ---------------------------------------------------------------- why
+    disagree = (insp.axis_check.conforms is not None and insp.surface_check.conforms is not None
+                and insp.axis_check.conforms != insp.surface_check.conforms)
+    paras = list(insp.explanation) + [f"Note: {n}" for n in insp.notes] + [f"Warning: {w}" for w in insp.warnings]
+    if paras:
+        y += 0.05
+        p.text(x0, y, "WHY THE AXIS AND SURFACE READINGS DISAGREE" if disagree else "EXPLANATION AND NOTES",
+               fontsize=7, weight="bold")
+        y += 0.14
+        body = []
+        for para in paras:
+            body += _wrap(para, W, fs)
+        p.text(x0, y, "\n".join(body), fontsize=fs, linespacing=1.2, gid="explanation")
+        y += 0.1 * len(body) + 0.04
+    return y
+
+
+def _deviation_bar(fig, p: _Page, insp, x: float, y: float, w: float, fs: float) -> None:
+    """Horizontal colour bar of the points' radial deviation (true values, as the 3D picture)."""
+    from matplotlib.cm import ScalarMappable
+    from matplotlib.colors import Normalize
+
+    u = insp.units
+    dev = np.asarray(insp.radial_deviation, float)
+    m = float(np.abs(dev).max()) or 10.0 ** -(u.decimals + 1)
+    title = _wrap(f"points: radial deviation from the least-squares cylinder, {u.value} (true values; + outward)",
+                  w, fs * 0.88)
+    cax = fig.add_axes(p.rect(x, y + 0.03 + 0.09 * len(title), w, 0.09))
+    sm = ScalarMappable(Normalize(-m, m), S.deviation_colormap())
+    cb = fig.colorbar(sm, cax=cax, orientation="horizontal")
+    cb.set_ticks([-m, -m / 2, 0.0, m / 2, m])
+    cb.ax.set_xticklabels([f"{v:+.{u.decimals + 1}f}" for v in (-m, -m / 2, 0.0, m / 2, m)], fontsize=fs * 0.85)
+    cb.outline.set_linewidth(0.4)
+    p.text(x, y, "\n".join(title), fontsize=fs * 0.88, linespacing=1.15)
+
+
+def build_inspection_page(res: SceneResult, insp, images=(), page_no: int = 1, pages: int = 1,
+                          caption: str = "", legend=(), files: tuple[str, ...] = ()) -> Figure:
+    """The nonconformance evidence page of one measured feature (A4 portrait): title block, the
+    3D inspection pictures (``images``: (label, uncropped render) pairs, shown side by side, with
+    the scene's colour ``legend``), the section table, envelopes beside least squares, the bonus
+    basis and tolerance allowed, the three verdicts with the ISO 14253-1 outcome, the explanation
+    when the readings disagree, disposition, signatures and the caution. Every number comes from
+    ``insp`` (:class:`geom.inspect.InspectionResult`), formatted at the units' precision."""
+    sc = res.scene
+    u = sc.units
+    f = insp.feature
+    t = f.tolerance
+    fs = 6.0
+    with F.style_context():
+        fig = Figure(figsize=PAGE, facecolor=S.BACKGROUND)
+        p = _Page(fig)
+        x0, W = MARGIN, PAGE[0] - 2 * MARGIN
+        char = (t.characteristic.value + (" (projected)" if t.projected else "")) if t else "size only"
+        y = _head(p, res, "INSPECTION EVIDENCE", "a produced feature judged against its tolerance", char,
+                  t.symbol(u) if t else "none", page_no, pages)
+        # ---------------------------------------------------------------- subject and verdict
+        y += 0.08
+        subj = _wrap(_inspection_subject(insp), W, 8.0 * 1.12)
+        p.text(x0, y, "\n".join(subj), fontsize=8.0, weight="bold", linespacing=1.15)
+        y += 0.135 * len(subj) + 0.05
+        head, bad = inspection_headline(insp)
+        col = S.INTERFERENCE if bad else S.OK
+        hl = _wrap(head, W - 0.2, 9.0 * 1.12)
+        bh = 0.165 * len(hl) + 0.25
+        p.box(x0, y, W, bh, lw=2.0 if bad else 1.0, ec=col)
+        p.text(x0 + 0.1, y + 0.06, "\n".join(hl), fontsize=9.0, weight="bold", color=col, linespacing=1.1,
+               gid="headline")
+        xx = x0 + 0.1
+        for n in INSPECTED_CHECKS:
+            c = getattr(insp, f"{n}_check")
+            word, cc = _check_word(c)
+            s = f"{n} reading: {word}"
+            p.text(xx, y + bh - 0.19, s, fontsize=7.2, weight="bold", color=cc)
+            xx += 1.75
+        if (insp.axis_check.conforms is not None and insp.surface_check.conforms is not None
+                and insp.axis_check.conforms != insp.surface_check.conforms):
+            p.text(x0 + W - 0.1, y + bh - 0.19, "readings disagree: see WHY below", fontsize=6.8,
+                   ha="right", style="italic")
+        y += bh + 0.08
+        # ---------------------------------------------------------------- sizes of the blocks below
+        lower_h = _inspection_lower(_DryPage(fig), insp, x0, 0.0, W, fs)
+        leg = list(legend)
+        leg_rows = (len(leg) + 1) // 2
+        leg_h = max(0.105 * leg_rows, 0.45 if insp.radial_deviation is not None else 0.0)
+        cap = [ln for ln in caption.splitlines() if ln.strip()]
+        cap_text = ("; ".join(cap) + ". " if cap else "") + (
+            "For the axis reading the dark median line must stay inside the green zone; for the surface reading "
+            "the dashed related envelope must clear the purple virtual-condition boundary (the gauge).")
+        if files:
+            cap_text += " Full pictures with every number: " + ", ".join(files) + "."
+        cl = _wrap(cap_text, W, fs * 0.88)
+        cap_h = 0.09 * len(cl)
+        bottom = PAGE[1] - 1.17
+        img_h = bottom - y - 0.13 - 0.06 - leg_h - 0.04 - cap_h - 0.1 - lower_h
+        img_h = float(min(3.0, max(1.5, img_h)))
+        # ---------------------------------------------------------------- 3D pictures
+        p.text(x0, y, "3D VIEWS OF THE MEASURED FEATURE", fontsize=7, weight="bold")
+        y += 0.15
+        n_img = max(1, len(images))
+        gap = 0.12
+        gw = (W - gap * (n_img - 1)) / n_img
+        for i, (label, img) in enumerate(images):
+            xi = x0 + i * (gw + gap)
+            ax = fig.add_axes(p.rect(xi, y, gw, img_h))
+            ax.set_axis_off()
+            ax.imshow(crop_to_content(img, aspect=gw / img_h), interpolation="antialiased")
+            ax.set_aspect("equal")
+            p.box(xi - 0.02, y - 0.02, gw + 0.04, img_h + 0.04, lw=0.4, ec=S.PART)
+            p.text(xi + 0.04, y + 0.03, label, fontsize=6.5, weight="bold", color=GREY)
+        y += img_h + 0.07
+        # legend: two columns of keys, the deviation colour bar on the right
+        kw_ = 2.55
+        for i, (text, colour) in enumerate(leg):
+            cx, cy = x0 + (i // leg_rows) * kw_, y + (i % leg_rows) * 0.105
+            p.box(cx, cy + 0.005, 0.09, 0.07, lw=0, fill=True, fc=colour, ec="none")
+            shown = text if len(text) <= 64 else text.split(" (")[0][:64]
+            p.text(cx + 0.13, cy, shown, fontsize=fs * 0.88)
+        if insp.radial_deviation is not None:
+            _deviation_bar(fig, p, insp, x0 + 2 * kw_ + 0.1, y, W - 2 * kw_ - 0.15, fs)
+        y += leg_h + 0.04
+        p.text(x0, y, "\n".join(cl), fontsize=fs * 0.88, color=GREY, linespacing=1.15)
+        y += cap_h + 0.1
+        # ---------------------------------------------------------------- tables, verdicts, explanation
+        y = _inspection_lower(p, insp, x0, y, W, fs)
+        # ---------------------------------------------------------------- disposition, signatures, caution
+        _disposition(p, x0, max(y + 0.05, PAGE[1] - 1.12), W)
+        p.line(x0, PAGE[1] - 0.44, x0 + W, PAGE[1] - 0.44, lw=0.5)
+        p.text(x0, PAGE[1] - 0.41, "\n".join(textwrap.wrap("CAUTION: " + CAUTION, 160)), fontsize=6.2,
+               style="italic", gid="caution")
+    return fig
+
+
+def _wrapped_table(p: _Page, x: float, y: float, widths, rows, fs: float, colours=None) -> float:
+    """A table whose cells wrap to their column; the first row is the heading."""
+    lh = fs * 0.0172
+    total = sum(widths)
+    for r, row in enumerate(rows):
+        cells = [_wrap(str(c), w - 0.06, fs) or [""] for c, w in zip(row, widths)]
+        n = max(len(c) for c in cells)
+        if r and r % 2 == 1:
+            p.box(x, y - 0.012, total, lh * n + 0.02, lw=0, fill=True, fc="#EEF0F2", ec="none")
+        xx = x
+        for c, (w, lines) in enumerate(zip(widths, cells)):
+            col = (colours[r][c] if colours and colours[r] and colours[r][c] else (GREY if r == 0 else S.TEXT))
+            kw = dict(weight="bold") if (r == 0 or c in (0, 3)) else {}
+            p.text(xx + 0.03, y, "\n".join(lines), fontsize=fs, color=col, linespacing=1.15, **kw)
+            xx += w
+        if r == 0:
+            p.line(x, y + lh * n, x + total, y + lh * n, lw=0.5)
+        y += lh * n + 0.03
+    return y
+
+
+# ------------------------------------------------------------------------------- fastener pages
+
+FASTENERS_PER_PAGE = 3
+
+
+def fastener_rows(res: SceneResult, fid: str) -> list[tuple[str, str]]:
+    """(quantity, value with its formula) of a fastener, from :func:`geom.analysis.analyse_fastener`
+    (through ``res.fasteners``) and its ``Derived`` formulas."""
+    from geom.analysis import required_hole_fixed
+
+    sc = res.scene
+    u, std = sc.units, sc.standard
+    fr = res.fasteners[fid]
+    fa = fr.fastener
+    uv = u.value
+    fixed = fa.kind == "fixed"
+    rows = [("kind", "fixed: one part threaded (or press-fit) holds the fastener; the other has a clearance hole"
+             if fixed else "floating: a clearance hole in each part, the fastener held by a nut"),
+            ("F", f"{u.fmt(fa.fastener)} {uv}  fastener at MMC (its largest size)"),
+            ("H", f"{u.fmt(fa.hole)} {uv}  clearance hole at MMC (its smallest size)")]
+    if fixed:
+        rows += [("P", f"{u.fmt(fa.projection)} {uv}  greatest thickness of the part with the clearance hole "
+                       "(the projected height)"),
+                 ("D", f"{u.fmt(fa.thread_depth)} {uv}  least thread depth (engagement) in the fixed part")]
+    T = fr.position_tolerance
+    rows.append(("position tolerance", f"⌀{u.fmt(T.value)} {uv} at MMC, "
+                 + ("each part" if not fixed else "each part, projected zone P on the threaded part")))
+    rows.append(("formula", T.formula(u, std)))
+    Tu = fr.position_tolerance_unprojected
+    if Tu is not None:
+        rows.append(("no projected zone", f"⌀{u.fmt(Tu.value)} {uv} at MMC, each part (equal tolerances)"))
+        rows.append(("formula", Tu.formula(u, std) + "   from H = F + T1 + T2(1 + 2P/D) with T1 = T2 = T"))
+        back = required_hole_fixed(fa.fastener, Tu.value, Tu.value, fa.projection, fa.thread_depth)
+        rows.append(("check", f"F + T + T(1 + 2P/D) = {u.fmt(fa.fastener)} + {u.fmt(Tu.value)} + "
+                              f"{u.fmt(Tu.value)} × (1 + 2 × {u.fmt(fa.projection)} / {u.fmt(fa.thread_depth)}) "
+                              f"= {u.fmt(back)} = H"))
+    return rows
+
+
+def fastener_words(res: SceneResult, fid: str) -> list[str]:
+    """What the numbers mean, in words (every number from geom.analysis)."""
+    sc = res.scene
+    u = sc.units
+    uv = u.value
+    fr = res.fasteners[fid]
+    fa = fr.fastener
+    T = fr.position_tolerance.value
+    if fa.kind == "floating":
+        return [f"Both parts may locate their clearance holes within ⌀{u.fmt(T)} {uv} at MMC: with both holes at "
+                f"their smallest size {u.fmt(fa.hole)} and their axes displaced the full amount in opposite "
+                f"directions, a fastener of {u.fmt(fa.fastener)} still passes through both. Larger holes earn "
+                "bonus tolerance (MMC)."]
+    Tu = fr.position_tolerance_unprojected.value
+    return [f"The fastener is fixed in one part, so the two parts share the clearance H − F: each gets "
+            f"⌀{u.fmt(T)} {uv} at MMC. The threaded hole's zone is projected {u.fmt(fa.projection)} {uv} above it, "
+            "through the part it holds, because that is where the fastener must fit the clearance hole.",
+            f"Without a projected zone a threaded hole may tilt within its tolerance over the depth D; the "
+            f"fastener carries that tilt up through P and leans further out at the top of the clearance part. "
+            f"With equal tolerances the holes must then be held to ⌀{u.fmt(Tu)} {uv} instead of "
+            f"⌀{u.fmt(T)} {uv}, or the clearance hole made larger."]
+
+
+def _dim(ax, x0, y0, x1, y1, text, fs, text_xy, ha="center", va="center", ext=None, color=S.TEXT):
+    """Dimension line with arrows and its (true) value; ``ext``: extension lines [(x, y, x, y), ...]."""
+    ax.annotate("", xy=(x1, y1), xytext=(x0, y0),
+                arrowprops=dict(arrowstyle="<|-|>", color=color, lw=0.8, shrinkA=0, shrinkB=0, mutation_scale=7))
+    for ex in ext or ():
+        ax.plot([ex[0], ex[2]], [ex[1], ex[3]], color=color, lw=0.5)
+    ax.text(*text_xy, text, fontsize=fs, ha=ha, va=va, color=color,
+            bbox=dict(boxstyle="round,pad=0.15", fc=S.BACKGROUND, ec="none", alpha=0.9))
+
+
+def draw_fastener(ax, res: SceneResult, fid: str, fs: float = 7.0) -> None:
+    """A section through the fastener in both parts, to scale (scene units on both axes), with F,
+    H and (fixed) P and D dimensioned at their true values. Part thicknesses of a floating pattern
+    are not in the scene: they are drawn at an arbitrary thickness, and so are the screw head and nut."""
+    from matplotlib.patches import Polygon
+
+    sc = res.scene
+    u = sc.units
+    fa = res.fasteners[fid].fastener
+    F_, H = fa.fastener, fa.hole
+    fixed = fa.kind == "fixed"
+    if fixed:
+        P, D = fa.projection, fa.thread_depth
+        top, bot = (0.0, P), (-D, 0.0)
+    else:
+        t = 1.2 * H  # not in the scene: schematic thickness
+        top, bot = (0.0, t), (-t, 0.0)
+    half_w = 1.9 * H
+    hatch = dict(fill=True, fc="#E4E7EA", ec=S.TEXT, lw=0.9, hatch="////")
+
+    def plate(y0, y1, hole_half, colour_ec=S.TEXT):
+        for sgn in (-1, 1):
+            xs = sorted((sgn * hole_half, sgn * half_w))
+            ax.add_patch(Rectangle((xs[0], y0), xs[1] - xs[0], y1 - y0, **hatch))
+
+    plate(*top, H / 2)
+    plate(*bot, (F_ / 2) if fixed else H / 2)
+    head_h, head_w = 0.55 * F_, 1.7 * F_
+    # fastener: shank, head (and nut for floating)
+    shank_bot = bot[0] if fixed else bot[0] - 0.75 * F_
+    ax.add_patch(Rectangle((-F_ / 2, shank_bot), F_, top[1] - shank_bot, fc=S.SURFACE, ec=S.TEXT, lw=0.9, alpha=0.85))
+    ax.add_patch(Rectangle((-head_w / 2, top[1]), head_w, head_h, fc=S.SURFACE, ec=S.TEXT, lw=0.9, alpha=0.85))
+    if not fixed:
+        ax.add_patch(Rectangle((-head_w / 2, bot[0] - head_h), head_w, head_h, fc=S.SURFACE, ec=S.TEXT, lw=0.9,
+                               alpha=0.85))
+    else:  # thread marks along the engagement D
+        n = 8
+        ys = np.linspace(bot[0], bot[1], 2 * n + 1)
+        for sgn in (-1, 1):
+            xs = [sgn * (F_ / 2 + (0.06 * F_ if i % 2 else 0.0)) for i in range(len(ys))]
+            ax.plot(xs, ys, color=S.TEXT, lw=0.7)
+        # the projected zone: from the threaded part's face up through P
+        ax.add_patch(Rectangle((-H / 2, 0.0), H, P, fill=False, ec=S.PROJECTED, lw=1.2, ls=(0, (4, 2))))
+    ax.plot([0, 0], [shank_bot - 0.15 * F_, top[1] + head_h + 0.15 * F_], color=S.TEXT, lw=0.5, ls="-.")
+    # dimensions (true values)
+    yH = top[1] + head_h + 0.45 * F_
+    _dim(ax, -H / 2, yH, H / 2, yH, f"H ⌀{u.fmt(H)}", fs, (0, yH + 0.02 * H), va="bottom",
+         ext=[(-H / 2, top[1], -H / 2, yH + 0.05 * F_), (H / 2, top[1], H / 2, yH + 0.05 * F_)])
+    yF = shank_bot - (head_h if not fixed else 0.0) - 0.45 * F_
+    _dim(ax, -F_ / 2, yF, F_ / 2, yF, f"F ⌀{u.fmt(F_)}", fs, (0, yF - 0.02 * H), va="top",
+         ext=[(-F_ / 2, shank_bot, -F_ / 2, yF - 0.05 * F_), (F_ / 2, shank_bot, F_ / 2, yF - 0.05 * F_)])
+    xr = half_w + 0.25 * H
+    if fixed:
+        _dim(ax, xr, 0.0, xr, P, f"P {u.fmt(P)}", fs, (xr + 0.08 * H, P / 2), ha="left",
+             ext=[(half_w, P, xr + 0.1 * H, P)])
+        _dim(ax, xr, -D, xr, 0.0, f"D {u.fmt(D)}", fs, (xr + 0.08 * H, -D / 2), ha="left",
+             ext=[(half_w, -D, xr + 0.1 * H, -D), (half_w, 0.0, xr + 0.1 * H, 0.0)])
+        ax.text(-half_w - 0.1 * H, P / 2, "projected\nzone\n(height P)", fontsize=fs * 0.9, ha="right", va="center",
+                color=S.PROJECTED)
+        ax.text(-half_w - 0.1 * H, -D / 2, "threaded\npart", fontsize=fs * 0.9, ha="right", va="center")
+        ax.text(-half_w, top[1] + 0.05 * H, "clearance-hole part", fontsize=fs * 0.9, ha="left", va="bottom")
+    else:
+        ax.text(-half_w - 0.1 * H, sum(top) / 2, "part 1", fontsize=fs * 0.9, ha="right", va="center")
+        ax.text(-half_w - 0.1 * H, sum(bot) / 2, "part 2", fontsize=fs * 0.9, ha="right", va="center")
+    ax.set_aspect("equal")
+    ax.autoscale_view()
+    ax.set_axis_off()
+    x_lo, x_hi = -half_w - 1.35 * H, xr + 1.3 * H
+    y_lo, y_hi = yF - 0.35 * H, yH + 0.35 * H
+    ax.set_xlim(x_lo, x_hi)
+    ax.set_ylim(y_lo, y_hi)
+
+
+def fastener_figure(res: SceneResult, fid: str) -> Figure:
+    """The fastener schematic as its own figure (for the PNG / SVG files)."""
+    sc = res.scene
+    fa = res.fasteners[fid].fastener
+    with F.style_context():
+        fig = Figure(figsize=(6.0, 6.0), facecolor=S.BACKGROUND)
+        ax = fig.add_axes((0.03, 0.1, 0.94, 0.8))
+        draw_fastener(ax, res, fid, fs=9)
+        fig.text(0.03, 0.97, f"fastener '{fid}' ({fa.kind}): section, drawn to scale", fontsize=11,
+                 weight="bold", va="top")
+        note = (f"lengths in {sc.units.value}, true values; " + (
+            "screw head drawn schematic" if fa.kind == "fixed" else
+            "part thicknesses, head and nut drawn schematic (not in the scene; the formula does not use them)"))
+        fig.text(0.03, 0.03, "\n".join(textwrap.wrap(note, 95)), fontsize=8, color=GREY, va="bottom")
+    return fig
+
+
+def build_fastener_page(res: SceneResult, fids: list[str], page_no: int, pages: int,
+                        files: dict[str, str] | None = None) -> Figure:
+    """A page of fastener tables (kind, F, H, P, D, position tolerance with its formula, the
+    equal tolerance without a projected zone, the meaning in words) each beside its schematic."""
+    sc = res.scene
+    u = sc.units
+    fs = 6.4
+    with F.style_context():
+        fig = Figure(figsize=PAGE, facecolor=S.BACKGROUND)
+        p = _Page(fig)
+        x0, W = MARGIN, PAGE[0] - 2 * MARGIN
+        chars = "; ".join(f"{fid}: position ({res.fasteners[fid].fastener.kind} fastener)" for fid in fids)
+        tols = "; ".join(f"{fid}: ⌀{u.fmt(res.fasteners[fid].position_tolerance.value)} (M)" for fid in fids)
+        y = _head(p, res, "FASTENER TOLERANCES", "position tolerance of clearance and threaded holes", chars, tols,
+                  page_no, pages)
+        y += 0.12
+        block_h = min(3.6, (PAGE[1] - 0.6 - y) / max(len(fids), 2))
+        tw = 4.35  # table width; the schematic takes the rest
+        for fid in fids:
+            fa = res.fasteners[fid].fastener
+            p.text(x0, y, f"Fastener '{fid}' ({fa.kind})", fontsize=8.5, weight="bold")
+            yy = y + 0.18
+            for q, v in fastener_rows(res, fid):
+                lines = _wrap(v, tw - 1.0, fs, "   ")
+                p.text(x0, yy, q, fontsize=fs, weight="bold", color=GREY)
+                p.text(x0 + 1.0, yy, "\n".join(lines), fontsize=fs, linespacing=1.2)
+                yy += 0.108 * len(lines) + 0.02
+            yy += 0.04
+            body = []
+            for para in fastener_words(res, fid):
+                body += _wrap(para, tw, fs)
+            p.text(x0, yy, "\n".join(body), fontsize=fs, linespacing=1.2, style="italic")
+            ax = fig.add_axes(p.rect(x0 + tw + 0.1, y + 0.05, W - tw - 0.1, block_h - 0.35))
+            draw_fastener(ax, res, fid, fs=fs)
+            cap = "section, to scale; values true" + ("" if fa.kind == "fixed" else
+                                                      "; thicknesses, head, nut schematic")
+            if files and fid in files:
+                cap += f" ({files[fid]})"
+            p.text(x0 + tw + 0.1, y + block_h - 0.27, "\n".join(_wrap(cap, W - tw - 0.1, fs * 0.85)),
+                   fontsize=fs * 0.85, color=GREY)
+            p.line(x0, y + block_h - 0.06, x0 + W, y + block_h - 0.06, lw=0.4, color=S.PART)
+            y += block_h
+        p.line(x0, PAGE[1] - 0.44, x0 + W, PAGE[1] - 0.44, lw=0.5)
+        p.text(x0, PAGE[1] - 0.41, "\n".join(textwrap.wrap("CAUTION: " + CAUTION, 160)), fontsize=6.2,
+               style="italic", gid="caution")
+    return fig
