@@ -28,11 +28,16 @@ minus pin envelope, both normal to A), to second order in the tilt angle.
 from __future__ import annotations
 
 import math
+from collections import OrderedDict
 from dataclasses import dataclass, field, replace
+from functools import lru_cache
 from typing import Any
 
 import numpy as np
 import pyvista as pv
+from vtkmodules.util.numpy_support import numpy_to_vtk, numpy_to_vtkIdTypeArray
+from vtkmodules.vtkCommonCore import vtkPoints
+from vtkmodules.vtkCommonDataModel import vtkCellArray
 
 from geom.analysis import FIT_SLACK, SceneResult, clearance_at, mate_formula, mate_verdict, term
 from geom.boundaries import FeatureState, bonus, effective_size, tolerance_allowed
@@ -230,22 +235,118 @@ def _axis_at(points: np.ndarray, z: np.ndarray) -> np.ndarray:
     return out
 
 
-def _rings(axis: np.ndarray, radius: float, n_phi: int = N_PHI) -> np.ndarray:
+def _unit_circle(n_phi: int) -> np.ndarray:
+    """(n_phi, 2) read-only array of (cos phi, sin phi), phi = 2 pi j / n_phi."""
+    cs = _UNIT_CIRCLES.get(n_phi)
+    if cs is None:
+        phi = 2.0 * np.pi * np.arange(n_phi) / n_phi
+        cs = np.column_stack((np.cos(phi), np.sin(phi)))
+        cs.flags.writeable = False
+        _UNIT_CIRCLES[n_phi] = cs
+    return cs
+
+
+_UNIT_CIRCLES: dict[int, np.ndarray] = {}
+
+
+def _ring_frame(axis: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """(U, V), each (nz, 3): the point at angle phi of the unit-radius ring of :func:`_rings` at
+    ``axis[i]`` is ``axis[i] + cos(phi) U[i] + sin(phi) V[i]``. U and V are the unit vectors e1, e2
+    normal to the axis (e1 from +x), each slid along the axis back into the plane z = axis z."""
+    T = np.gradient(axis, axis=0) if len(axis) > 2 else np.repeat((axis[1] - axis[0])[None], len(axis), 0)
+    T = T / np.linalg.norm(T, axis=1)[:, None]
+    e1 = -T[:, 0:1] * T  # ref - (T . ref) T with ref = +x
+    e1[:, 0] += 1.0
+    e1 /= np.linalg.norm(e1, axis=1)[:, None]
+    e2 = np.empty_like(T)  # T x e1
+    e2[:, 0] = T[:, 1] * e1[:, 2] - T[:, 2] * e1[:, 1]
+    e2[:, 1] = T[:, 2] * e1[:, 0] - T[:, 0] * e1[:, 2]
+    e2[:, 2] = T[:, 0] * e1[:, 1] - T[:, 1] * e1[:, 0]
+    inv_tz = 1.0 / T[:, 2:3]
+    return e1 - (e1[:, 2:3] * inv_tz) * T, e2 - (e2[:, 2:3] * inv_tz) * T
+
+
+def _rings(axis: np.ndarray, radius: float, n_phi: int = N_PHI, frame=None) -> np.ndarray:
     """(nz, n_phi, 3) points of a right circular cylinder of ``radius`` about the polyline
     ``axis`` (points at increasing z), cut by the planes z = axis z: each ring is the section
     of the cylinder in the plane parallel to A at that height (an ellipse for a tilted axis)."""
-    T = np.gradient(axis, axis=0) if len(axis) > 2 else np.repeat((axis[1] - axis[0])[None], len(axis), 0)
-    T = T / np.linalg.norm(T, axis=1)[:, None]
-    ref = np.array([1.0, 0.0, 0.0])
-    e1 = ref[None] - (T @ ref)[:, None] * T
-    e1 /= np.linalg.norm(e1, axis=1)[:, None]
-    e2 = np.cross(T, e1)
-    phi = 2.0 * np.pi * np.arange(n_phi) / n_phi
-    c, s = np.cos(phi), np.sin(phi)
-    radial = radius * (c[None, :, None] * e1[:, None, :] + s[None, :, None] * e2[:, None, :])  # (nz, n, 3)
-    # slide each generator point along the axis back into the plane z = axis z
-    slide = -radial[..., 2] / T[:, None, 2]
-    return axis[:, None, :] + radial + slide[..., None] * T[:, None, :]
+    U, V = _ring_frame(axis) if frame is None else frame
+    return axis[:, None, :] + radius * (_unit_circle(n_phi) @ np.stack((U, V), axis=1))
+
+
+def _ring_dist(axis: np.ndarray, radius: float, line: np.ndarray, n_phi: int) -> np.ndarray:
+    """(nz, n_phi) distances of the points ``_rings(axis, radius, n_phi)`` to the polyline
+    ``line`` (its end segments extended), as :func:`_dist_to_polyline` gives them, without
+    forming the points. On a ring p - a = W0 + cos(phi) U + sin(phi) V is linear in (cos, sin),
+    so its part across a segment is D0 + cos D1 + sin D2 and the squared length of that is a
+    quadratic form in (cos, sin): six coefficients per ring against the basis
+    (1, cos, sin, cos^2, sin^2, 2 sin cos) of the n_phi angles. Past an inner end of a segment
+    the part along it beyond the end is added (Pythagoras)."""
+    U, V = _ring_frame(axis)
+    UV = radius * np.stack((U, V), axis=1)  # (nz, 2, 3)
+    basis = _quadratic_basis(n_phi)  # (6, n_phi)
+    nseg = len(line) - 1
+    best = None
+    for i in range(nseg):
+        a, ab = line[i], line[i + 1] - line[i]
+        L2 = float(ab @ ab)
+        W0 = axis - a
+        t0 = W0 @ ab / L2  # (nz,)
+        t12 = UV @ ab / L2  # (nz, 2)
+        D0 = W0 - t0[:, None] * ab
+        D1 = UV[:, 0] - t12[:, 0:1] * ab
+        D2 = UV[:, 1] - t12[:, 1:2] * ab
+        coef = np.column_stack((np.einsum("ij,ij->i", D0, D0), 2.0 * np.einsum("ij,ij->i", D0, D1),
+                                2.0 * np.einsum("ij,ij->i", D0, D2), np.einsum("ij,ij->i", D1, D1),
+                                np.einsum("ij,ij->i", D2, D2), np.einsum("ij,ij->i", D1, D2)))
+        d2 = coef @ basis
+        if nseg > 1:  # inner segment ends: add the part along the segment beyond them
+            t = t0[:, None] + t12 @ basis[1:3]
+            lo = -np.inf if i == 0 else 0.0
+            hi = np.inf if i == nseg - 1 else 1.0
+            over = t - np.clip(t, lo, hi)
+            d2 += over * over * L2
+        best = d2 if best is None else np.minimum(best, d2)
+    return np.sqrt(np.maximum(best, 0.0))
+
+
+def _quadratic_basis(n_phi: int) -> np.ndarray:
+    """(6, n_phi) read-only rows 1, cos, sin, cos^2, sin^2, 2 sin cos of phi = 2 pi j / n_phi."""
+    q = _QUADRATIC_BASES.get(n_phi)
+    if q is None:
+        c, s = _unit_circle(n_phi).T
+        q = np.vstack((np.ones(n_phi), c, s, c * c, s * s, 2.0 * s * c))
+        q.flags.writeable = False
+        _QUADRATIC_BASES[n_phi] = q
+    return q
+
+
+_QUADRATIC_BASES: dict[int, np.ndarray] = {}
+
+
+def _ring_point(axis: np.ndarray, frame, radius: float, i: int, j: int, n_phi: int) -> np.ndarray:
+    """The point ``_rings(axis, radius, n_phi, frame)[i, j]`` alone."""
+    U, V = frame
+    c, s = _unit_circle(n_phi)[j]
+    return axis[i] + radius * (c * U[i] + s * V[i])
+
+
+@lru_cache(maxsize=64)
+def _quad_conn(nz: int, n: int, caps: bool) -> tuple[np.ndarray, np.ndarray]:
+    """(offsets, connectivity) of the quads of a tube of nz rings of n points (and its caps)."""
+    i, j = np.meshgrid(np.arange(nz - 1), np.arange(n), indexing="ij")
+    a = i * n + j
+    b = i * n + (j + 1) % n
+    conn = [np.stack([a, b, b + n, a + n], -1).reshape(-1)]
+    sizes = [np.full(a.size, 4)]
+    if caps:
+        conn += [np.arange(n)[::-1], (nz - 1) * n + np.arange(n)]
+        sizes += [[n], [n]]
+    offsets = np.concatenate([[0], np.cumsum(np.concatenate(sizes))])
+    out = (offsets.astype(np.int64), np.concatenate(conn).astype(np.int64))
+    for arr in out:
+        arr.flags.writeable = False
+    return out
 
 
 def _quad_faces(nz: int, n: int, offset: int = 0) -> np.ndarray:
@@ -258,62 +359,160 @@ def _quad_faces(nz: int, n: int, offset: int = 0) -> np.ndarray:
     return q.reshape(-1)
 
 
-def _tube(rings: np.ndarray, caps: bool = False) -> pv.PolyData:
+def _cell_array(offsets: np.ndarray, conn: np.ndarray) -> vtkCellArray:
+    ca = vtkCellArray()
+    ca.SetData(numpy_to_vtkIdTypeArray(np.array(offsets, dtype=np.int64), deep=True),
+               numpy_to_vtkIdTypeArray(np.array(conn, dtype=np.int64), deep=True))
+    return ca
+
+
+def _legacy_cells(cells: np.ndarray) -> vtkCellArray:
+    """A vtkCellArray from the flat [n, i0, .., n, j0, ..] form ``pv.PolyData`` takes."""
+    ca = vtkCellArray()
+    ca.ImportLegacyFormat(numpy_to_vtkIdTypeArray(np.ascontiguousarray(cells, dtype=np.int64), deep=True))
+    return ca
+
+
+def _mesh(points: np.ndarray, polys: vtkCellArray | None = None, lines: vtkCellArray | None = None,
+          dtype=np.float64) -> pv.PolyData:
+    """The PolyData ``pv.PolyData(points, faces=..., lines=...)`` builds (float64 points, no
+    arrays), assembled directly: the mesh builders run on every what-if move."""
+    mesh = pv.PolyData()
+    vp = vtkPoints()
+    vp.SetData(numpy_to_vtk(np.array(points, dtype=dtype, order="C").reshape(-1, 3), deep=True))
+    mesh.SetPoints(vp)
+    if polys is not None:
+        mesh.SetPolys(polys)
+    if lines is not None:
+        mesh.SetLines(lines)
+    return mesh
+
+
+_INTERNED: OrderedDict = OrderedDict()  # (kind, shape, point bytes) -> mesh
+_INTERN_SIZE = 256
+
+
+def _interned(kind: tuple, points: np.ndarray, make) -> pv.PolyData:
+    """The mesh ``make()`` builds from ``points`` (float64) and a topology named by ``kind``,
+    shared with every earlier call that had exactly the same points: a what-if move leaves
+    most of the picture as it was, and an unchanged mesh handed back as the same object is
+    neither rebuilt, nor cut again by :func:`section_cut`, nor uploaded again by a renderer.
+    Interned meshes are shared: callers must not modify them."""
+    points = np.ascontiguousarray(points, dtype=float)
+    key = (kind, points.shape, points.tobytes())
+    mesh = _INTERNED.get(key)
+    if mesh is None:
+        mesh = _INTERNED[key] = make(points)
+        if len(_INTERNED) > _INTERN_SIZE:
+            _INTERNED.popitem(last=False)
+    else:
+        _INTERNED.move_to_end(key)
+    return mesh
+
+
+def _tube(rings: np.ndarray, caps: bool = False, shared: bool = True) -> pv.PolyData:
+    """The quads round the rings (nz, n, 3), and with ``caps`` the two end polygons.
+    ``shared=False`` returns a mesh of its own (to carry point data)."""
     nz, n, _ = rings.shape
+
+    def make(pts):
+        return _mesh(pts, polys=_cell_array(*_quad_conn(nz, n, caps)))
+
     pts = rings.reshape(-1, 3)
-    faces = [_quad_faces(nz, n)]
-    if caps:
-        faces.append(np.concatenate([[n], np.arange(n)[::-1]]))
-        faces.append(np.concatenate([[n], (nz - 1) * n + np.arange(n)]))
-    return pv.PolyData(pts, np.concatenate(faces))
+    return _interned(("tube", caps), pts, make) if shared else make(pts)
 
 
+def _points(points: np.ndarray) -> pv.PolyData:
+    """The points as ``pv.PolyData(points)`` makes them: one vertex cell per point."""
+    points = np.asarray(points, dtype=float).reshape(-1, 3)
+    n = len(points)
+    mesh = _mesh(points)
+    mesh.SetVerts(_cell_array(np.arange(n + 1), np.arange(n)))
+    return mesh
+
+
+def _polygon(ring: np.ndarray) -> pv.PolyData:
+    """One polygon through the points of ``ring`` (shared)."""
+    n = len(ring)
+    return _interned(("polygon",), ring, lambda pts: _mesh(pts, polys=_cell_array(np.array([0, n]), np.arange(n))))
+
+
+@lru_cache(maxsize=128)
 def _cage(centre: tuple[float, float], radius: float, z0: float, z1: float, n_rings: int = 3,
           n_gen: int = 8, n_phi: int = N_PHI_CAGE, phase: float = 0.0) -> pv.PolyData:
-    """Wireframe of a perfect cylinder normal to A: rings and generator lines."""
-    phi = 2 * np.pi * np.arange(n_phi) / n_phi
-    pts, lines = [], []
-    for z in np.linspace(z0, z1, n_rings):
-        base = len(pts)
-        pts += [(centre[0] + radius * math.cos(p), centre[1] + radius * math.sin(p), z) for p in phi]
-        lines.append([n_phi + 1, *range(base, base + n_phi), base])
-    for g in range(n_gen):
-        p = phase + 2 * np.pi * g / n_gen
-        base = len(pts)
-        pts += [(centre[0] + radius * math.cos(p), centre[1] + radius * math.sin(p), z0),
-                (centre[0] + radius * math.cos(p), centre[1] + radius * math.sin(p), z1)]
-        lines.append([2, base, base + 1])
-    return pv.PolyData(np.array(pts), lines=np.concatenate(lines))
+    """Wireframe of a perfect cylinder normal to A: rings and generator lines. Cached (it depends
+    on its arguments only): the mesh is shared, callers must not modify it."""
+    cs = _unit_circle(n_phi)
+    zs = np.linspace(z0, z1, n_rings)
+    ring = np.column_stack((centre[0] + radius * cs[:, 0], centre[1] + radius * cs[:, 1]))
+    rings = np.concatenate([np.column_stack((ring, np.full(n_phi, z))) for z in zs])
+    p = phase + 2 * np.pi * np.arange(n_gen) / n_gen
+    gxy = np.column_stack((centre[0] + radius * np.cos(p), centre[1] + radius * np.sin(p)))
+    gen = np.empty((n_gen, 2, 3))
+    gen[:, :, :2] = gxy[:, None, :]
+    gen[:, 0, 2], gen[:, 1, 2] = z0, z1
+    pts = np.concatenate([rings, gen.reshape(-1, 3)])
+    base = n_rings * n_phi
+    conn = np.concatenate([np.concatenate([r * n_phi + np.arange(n_phi), [r * n_phi]]) for r in range(n_rings)]
+                          + [base + np.arange(2 * n_gen)])
+    offsets = np.concatenate([np.arange(n_rings + 1) * (n_phi + 1),
+                              n_rings * (n_phi + 1) + 2 * np.arange(1, n_gen + 1)])
+    return _mesh(pts, lines=_cell_array(offsets, conn))
 
 
 def _polyline(points: np.ndarray) -> pv.PolyData:
-    points = np.asarray(points, dtype=float)
-    return pv.PolyData(points, lines=np.concatenate([[len(points)], np.arange(len(points))]))
+    """One line through the points (shared)."""
+    n = len(points)
+    return _interned(("polyline",), points, lambda pts: _mesh(pts, lines=_cell_array(np.array([0, n]), np.arange(n))))
+
+
+@lru_cache(maxsize=16)
+def _block_conn(n: int) -> tuple[np.ndarray, np.ndarray]:
+    """(offsets, connectivity) of :func:`_block_with_hole`'s quads for rings of n points."""
+    j = np.arange(n)
+    k = (j + 1) % n
+
+    def annulus(o):  # inner ring o..o+n -> outer ring o+n..o+2n
+        return np.stack([o + j, o + k, o + n + k, o + n + j], -1)
+
+    walls = np.stack([n + j, n + k, 3 * n + k, 3 * n + j], -1)  # outer bottom (n..2n) -> outer top (3n..4n)
+    conn = np.concatenate([annulus(0), annulus(2 * n), walls]).reshape(-1).astype(np.int64)
+    offsets = 4 * np.arange(3 * n + 1, dtype=np.int64)
+    for arr in (offsets, conn):
+        arr.flags.writeable = False
+    return offsets, conn
+
+
+@lru_cache(maxsize=64)
+def _square_ring(centre: tuple[float, float], half: float, n: int) -> np.ndarray:
+    """(n, 2) points of the square of side 2*half, at the angles of an n-point ring."""
+    cs = _unit_circle(n)
+    c, s = cs[:, 0], cs[:, 1]
+    sq = half / np.maximum(np.abs(c), np.abs(s))
+    out = np.column_stack((centre[0] + sq * c, centre[1] + sq * s))
+    out.flags.writeable = False
+    return out
 
 
 def _block_with_hole(hole_bottom: np.ndarray, hole_top: np.ndarray, centre, half: float, z0: float,
                      z1: float) -> pv.PolyData:
-    """A square block (side 2*half) with a hole whose end sections are the given rings."""
+    """A square block (side 2*half) with a hole whose end sections are the given rings: the
+    bottom annulus (hole_bottom -> outer bottom), the top annulus and the outer walls."""
     n = hole_bottom.shape[0]
-    phi = 2 * np.pi * np.arange(n) / n
-    c, s = np.cos(phi), np.sin(phi)
-    sq = half / np.maximum(np.abs(c), np.abs(s))
-    outer = np.column_stack((centre[0] + sq * c, centre[1] + sq * s))
-    ob = np.column_stack((outer, np.full(n, z0)))
-    ot = np.column_stack((outer, np.full(n, z1)))
-    pts = np.vstack([hole_bottom, ob, hole_top, ot])
-    faces = [
-        _quad_faces(2, n, 0),  # bottom annulus: hole_bottom -> outer bottom
-        _quad_faces(2, n, 2 * n),  # top annulus
-    ]
-    # outer walls: outer bottom (n..2n) -> outer top (3n..4n)
-    j = np.arange(n)
-    walls = np.stack([np.full(n, 4), n + j, n + (j + 1) % n, 3 * n + (j + 1) % n, 3 * n + j], -1).reshape(-1)
-    faces.append(walls)
-    return pv.PolyData(pts, np.concatenate(faces))
+    outer = _square_ring((float(centre[0]), float(centre[1])), float(half), n)
+    pts = np.empty((4 * n, 3))
+    pts[:n] = hole_bottom
+    pts[n:2 * n, :2] = outer
+    pts[n:2 * n, 2] = z0
+    pts[2 * n:3 * n] = hole_top
+    pts[3 * n:, :2] = outer
+    pts[3 * n:, 2] = z1
+    return _interned(("block",), pts, lambda q: _mesh(q, polys=_cell_array(*_block_conn(n))))
 
 
+@lru_cache(maxsize=32)
 def _plate(centre, half: float, z0: float, z1: float) -> pv.PolyData:
+    """The box under a pin. Cached: the mesh is shared, callers must not modify it."""
     return pv.Box(bounds=(centre[0] - half, centre[0] + half, centre[1] - half, centre[1] + half, z0, z1))
 
 
@@ -511,7 +710,7 @@ def _feature_geometry(res: SceneResult, f: Feature, st: FeatureState, ex: _Ex, c
         below = ex.pts(_axis_at(pts_true, np.array([-tol.projected, 0.0])))
         b.add("projected", f"{tag} axis extension", _polyline(below), _line(axis_colour, 4.0))
     ends = full[[0, -1]] if not place.bowed else ex.pts(_axis_at(pts_true, np.array([0.0, f.length / 2, f.length])))
-    b.add("axis", f"{tag} axis ends", pv.PolyData(ends), dict(color=axis_colour, point_size=11,
+    b.add("axis", f"{tag} axis ends", _points(ends), dict(color=axis_colour, point_size=11,
                                                                render_points_as_spheres=True, lighting=False))
     b.key(f"{tag} axis, worst case" + (" (bowed)" if place.bowed else " (tilted)"), axis_colour, "axis")
 
@@ -562,14 +761,37 @@ def _symbol_side(direction_deg: float) -> np.ndarray:
     return -np.array([math.cos(phi), math.sin(phi), 0.0]) - 0.3 * np.array([-math.sin(phi), math.cos(phi), 0.0])
 
 
+_PLANE_TCOORDS = np.array([[0.0, 0.0], [1.0, 0.0], [0.0, 1.0], [1.0, 1.0]], dtype=np.float32)
+_PLANE_NORMALS = np.array([[0.0, 0.0, 1.0]] * 4, dtype=np.float32)
+
+
+def _datum_plane(cx: float, cy: float, z: float, size: float) -> pv.PolyData:
+    """The square ``pv.Plane(center=(cx, cy, z), direction=(0, 0, 1), i_size=2*size,
+    j_size=2*size, i_resolution=1, j_resolution=1)`` makes (float32 points, one quad, its
+    texture coordinates and normals), built directly: the VTK source and its transforms cost
+    ~2 ms and the size follows the hole on every what-if move. The corners are computed in
+    double precision and rounded once to float32 (the source's own rounding differs from it
+    by a float32 unit in the last place at most)."""
+    pts = np.array([[cx - size, cy - size, z], [cx + size, cy - size, z],
+                    [cx - size, cy + size, z], [cx + size, cy + size, z]])
+    mesh = _mesh(pts, polys=_cell_array(np.array([0, 4]), np.array([0, 1, 3, 2])), dtype=np.float32)
+    pd = mesh.GetPointData()
+    tc = numpy_to_vtk(_PLANE_TCOORDS, deep=True)
+    tc.SetName("TextureCoordinates")
+    pd.SetTCoords(tc)
+    nm = numpy_to_vtk(_PLANE_NORMALS, deep=True)
+    nm.SetName("Normals")
+    pd.SetNormals(nm)
+    return mesh
+
+
 def _datum(b: _Built, f: Feature, centre, half: float, length: float, view_side: np.ndarray) -> None:
     """Datum plane A (z = 0 in the drawing frame) and the datum feature symbol."""
     tol = f.tolerance
     letter = tol.datums[0] if tol is not None and tol.datums else "A"
     size = 1.55 * half
     dz = -0.004 * length  # just under the part's face, so the two do not fight for the pixels
-    plane = pv.Plane(center=(centre[0], centre[1], dz), direction=(0, 0, 1), i_size=2 * size, j_size=2 * size,
-                     i_resolution=1, j_resolution=1)
+    plane = _datum_plane(float(centre[0]), float(centre[1]), dz, size)
     b.add("datum", "datum plane", plane, _surf(S.DATUM, S.DATUM_OPACITY, smooth_shading=False, specular=0.0))
     # datum feature symbol: a filled triangle on the plane, a leader, the letter in a frame
     d = view_side / np.linalg.norm(view_side)
@@ -598,22 +820,21 @@ def _mate_surface(b: _Built, hole_g: dict, pin: Feature, pin_g: dict, ex: _Ex, u
     e0, e1 = max(hz0, pz0), min(hz1, pz1)
     zs = np.linspace(e0, e1, N_Z_MATE)
     axis_true = _axis_at(pin_g["pts_true"], zs)
-    rings_true = _rings(axis_true, pin_g["r_true"])
-    rings_draw = _rings(ex.pts(axis_true), pin_g["r_draw"])
-    hole_axis = hole_g["axis_true_line"]
-    gap = hole_radius_true - _dist_to_polyline(rings_true.reshape(-1, 3), hole_axis)
-    mesh = _tube(rings_draw)
+    axis_draw = ex.pts(axis_true)
+    frame_draw = _ring_frame(axis_draw)
+    rings_draw = _rings(axis_draw, pin_g["r_draw"], frame=frame_draw)
+    hole_axis = np.asarray(hole_g["axis_true_line"], dtype=float)
+    # true local gap at the mesh's vertices (the rings about the true axis at the true radius)
+    gap = (hole_radius_true - _ring_dist(axis_true, pin_g["r_true"], hole_axis, N_PHI)).reshape(-1)
+    mesh = _tube(rings_draw, shared=False)
     mesh.point_data["gap"] = gap
     mesh.point_data["clearance"] = 2.0 * gap
     mesh.set_active_scalars("clearance")
     cmin, cmax = float(mesh.point_data["clearance"].min()), float(mesh.point_data["clearance"].max())
 
     # tightest spot: finely sampled round every ring of the engagement
-    fine_true = _rings(axis_true, pin_g["r_true"], N_FINE)
-    fgap = hole_radius_true - _dist_to_polyline(fine_true.reshape(-1, 3), hole_axis)
-    fgap = fgap.reshape(len(zs), N_FINE)
+    fgap = hole_radius_true - _ring_dist(axis_true, pin_g["r_true"], hole_axis, N_FINE)
     gmin = float(fgap.min())
-    fine_draw = _rings(ex.pts(axis_true), pin_g["r_draw"], N_FINE)
     spots = []
     decimals = units.decimals + 1
     for zi in range(len(zs)):  # every ring where the minimum is reached (to display precision)
@@ -628,14 +849,14 @@ def _mate_surface(b: _Built, hole_g: dict, pin: Feature, pin_g: dict, ex: _Ex, u
     interferes = c_tight < -FIT_SLACK
     lo = min(0.0, cmin)
     hi = max(cmax, lo + abs(lo) * 0.25, 1e-12)
-    cmap = S.clearance_colormap(lo, hi)
+    cmap = _clearance_colormap(lo, hi)
     title = f"clearance, {units.value}"
     style = dict(scalars="clearance", cmap=cmap, clim=(lo, hi), smooth_shading=True, ambient=0.35,
                  diffuse=0.75, specular=0.1, show_scalar_bar=False, interpolate_before_map=True)
     b.add(mate_layer, f"{tag_pin} surface (clearance)", mesh, style)
     for end in (0, -1):  # the pin's end faces (no clearance there: plain colour)
         ring = rings_draw[end]
-        b.add(mate_layer, f"{tag_pin} end", pv.PolyData(ring, faces=np.concatenate([[len(ring)], np.arange(len(ring))])),
+        b.add(mate_layer, f"{tag_pin} end", _polygon(ring),
               _surf(S.MATE, 1.0, smooth_shading=False))
     b.key(f"{tag_pin} surface: clearance to the {tag_hole} (true; 2 x local gap)", S.CLEARANCE_COLORS[1], mate_layer)
     if interferes:
@@ -644,9 +865,9 @@ def _mate_surface(b: _Built, hole_g: dict, pin: Feature, pin_g: dict, ex: _Ex, u
     # markers: the tightest spots, and the gap drawn as a short segment across to the hole surface
     hole_r_draw = hole_g["r_draw_surface"]
     colour = S.INTERFERENCE if interferes else S.TIGHT
-    for zi, j in spots:
-        p = fine_draw[zi, j]
-        b.add("clearance", "tightest spot", pv.PolyData(p[None]),
+    spot_pts = [_ring_point(axis_draw, frame_draw, pin_g["r_draw"], zi, j, N_FINE) for zi, j in spots]
+    for p in spot_pts:
+        b.add("clearance", "tightest spot", _points(p[None]),
               dict(color=colour, point_size=16, render_points_as_spheres=True, lighting=False))
         # outward direction on A at that spot, label a little outside the hole surface
         centre_d = ex.pts(_axis_at(hole_g["axis_true_line"], np.array([p[2]])))[0]
@@ -659,13 +880,27 @@ def _mate_surface(b: _Built, hole_g: dict, pin: Feature, pin_g: dict, ex: _Ex, u
     txt = ("interference " if interferes else "tightest ") + units.fmt(c_tight, signed=True) + f" {units.value}"
     txt += f" ({abs(gmin):.{units.decimals + 1}f} a side)"
     cx = ex.c
-    for zi, j in spots:
-        p = fine_draw[zi, j]
+    for p in spot_pts:
         right = (p[0] - cx[0]) * math.cos(math.radians(0)) > 0  # spot on the +x side: text runs left
         b.labels.append(Label(tuple(p), txt, S.INTERFERENCE if interferes else S.TEXT, 16, layer="clearance",
                               justify="right" if right else "left"))
     bar = dict(title=title, clim=(lo, hi))
     return cmin, c_tight, bar
+
+
+@lru_cache(maxsize=32)
+def _clearance_colormap(lo: float, hi: float):
+    """``style.clearance_colormap(lo, hi)``, cached (shared: callers must not modify it). With
+    lo = 0 the colours do not depend on hi (the ramp runs from 0 to hi), so every such call
+    shares the map made for (0, 1)."""
+    if lo == 0.0 and hi > 0.0:
+        return _clearance_colormap_zero()
+    return S.clearance_colormap(lo, hi)
+
+
+@lru_cache(maxsize=1)
+def _clearance_colormap_zero():
+    return S.clearance_colormap(0.0, 1.0)
 
 
 # --------------------------------------------------------------------------- cameras
@@ -1295,6 +1530,31 @@ _OUTLINED = {"part": ("#6B737B", 2.0), "surface": (S.SURFACE, 5.0), "zone": (S.Z
              "projected": (S.PROJECTED, 3.0), "envelopes": (None, 3.0)}
 
 
+_CUTS: OrderedDict = OrderedDict()  # (id(mesh), plane, outline) -> (mesh, cut, line)
+_CUTS_SIZE = 128
+
+
+def _cut(mesh: pv.PolyData, o: np.ndarray, n: np.ndarray, origin: np.ndarray, outline: bool):
+    """(the half of ``mesh`` behind the plane (o, n), its outline in the plane through
+    ``origin`` or None). Remembered for the shared meshes a what-if move hands back unchanged
+    (the entry keeps the mesh alive, so its id stays its own); the results are shared too."""
+    key = (id(mesh), o.tobytes(), n.tobytes(), origin.tobytes(), outline)
+    hit = _CUTS.get(key)
+    if hit is not None and hit[0] is mesh:
+        _CUTS.move_to_end(key)
+        return hit[1], hit[2]
+    cut = mesh.clip(normal=tuple(-n), origin=tuple(o), invert=True)
+    if not isinstance(cut, pv.PolyData):
+        cut = cut.extract_surface()
+    line = None
+    if outline and mesh.n_cells and mesh.n_lines == 0:
+        line = mesh.slice(normal=tuple(n), origin=tuple(origin))
+    _CUTS[key] = (mesh, cut, line)
+    if len(_CUTS) > _CUTS_SIZE:
+        _CUTS.popitem(last=False)
+    return cut, line
+
+
 def section_cut(scene: Scene3D) -> Scene3D:
     """The scene cut by the plane of the tilt (through the zone axis, normal to A), keeping the
     half away from the iso and section cameras, with the cut outlines drawn as thick lines:
@@ -1310,21 +1570,18 @@ def section_cut(scene: Scene3D) -> Scene3D:
         out: list[Layer] = []
         for it in items:
             mesh = it.mesh
-            cut = mesh.clip(normal=tuple(-n), origin=tuple(o), invert=True)
-            if not isinstance(cut, pv.PolyData):
-                cut = cut.extract_surface()
+            outline = name in _OUTLINED and it.style.get("opacity", 1.0) > 0.05
+            cut, line = _cut(mesh, o, n, np.asarray(origin, dtype=float), outline)
             if cut.n_points:
                 out.append(replace(it, mesh=cut))
-            if name in _OUTLINED and mesh.n_cells and mesh.n_lines == 0 and it.style.get("opacity", 1.0) > 0.05:
-                line = mesh.slice(normal=tuple(n), origin=tuple(np.asarray(origin, dtype=float)))
-                if line.n_points:
-                    colour, width = _OUTLINED[name]
-                    st = {k: v for k, v in it.style.items() if k in ("scalars", "cmap", "clim", "show_scalar_bar",
-                                                                     "interpolate_before_map")}
-                    if "scalars" not in st:
-                        st["color"] = colour or it.style.get("color", S.TEXT)
-                    st.update(line_width=width, lighting=False)
-                    out.append(Layer(it.name + " (cut)", line, st))
+            if line is not None and line.n_points:
+                colour, width = _OUTLINED[name]
+                st = {k: v for k, v in it.style.items() if k in ("scalars", "cmap", "clim", "show_scalar_bar",
+                                                                 "interpolate_before_map")}
+                if "scalars" not in st:
+                    st["color"] = colour or it.style.get("color", S.TEXT)
+                st.update(line_width=width, lighting=False)
+                out.append(Layer(it.name + " (cut)", line, st))
         if out:
             layers[name] = tuple(out)
     return replace(scene, layers=layers)
