@@ -716,7 +716,7 @@ def _envelope_vs_ls(p: _Page, insp, x: float, y: float, w: float, fs: float) -> 
     rows = [("", "envelopes (gauge)", "least squares (CMM)")]
     cols = [None]
     rows.append(("size", f"unrelated {short} ⌀{fmt(None if env_u is None else env_u.diameter)}",
-                 f"LS cylinder ⌀{ls_cell(None if ls is None else ls.size)}"))
+                 "—" if ls is None else f"LS cylinder ⌀{fmt(ls.size)}"))
     cols.append(None)
     rows.append(("held to datum", f"related {short} ⌀{fmt(None if env_r is None else env_r.diameter)}", "—"))
     cols.append(None)
@@ -1090,10 +1090,10 @@ def draw_fastener(ax, res: SceneResult, fid: str, fs: float = 7.0) -> None:
              ext=[(half_w, P, xr + 0.1 * H, P)])
         _dim(ax, xr, -D, xr, 0.0, f"D {u.fmt(D)}", fs, (xr + 0.08 * H, -D / 2), ha="left",
              ext=[(half_w, -D, xr + 0.1 * H, -D), (half_w, 0.0, xr + 0.1 * H, 0.0)])
-        ax.text(-half_w - 0.1 * H, P / 2, "projected\nzone\n(height P)", fontsize=fs * 0.9, ha="right", va="center",
+        ax.text(-half_w - 0.1 * H, 0.4 * P, "projected\nzone\n(height P)", fontsize=fs * 0.9, ha="right", va="center",
                 color=S.PROJECTED)
         ax.text(-half_w - 0.1 * H, -D / 2, "threaded\npart", fontsize=fs * 0.9, ha="right", va="center")
-        ax.text(-half_w, top[1] + 0.05 * H, "clearance-hole part", fontsize=fs * 0.9, ha="left", va="bottom")
+        ax.text(-half_w - 0.1 * H, 0.85 * P, "clearance-\nhole part", fontsize=fs * 0.9, ha="right", va="center")
     else:
         ax.text(-half_w - 0.1 * H, sum(top) / 2, "part 1", fontsize=fs * 0.9, ha="right", va="center")
         ax.text(-half_w - 0.1 * H, sum(bot) / 2, "part 2", fontsize=fs * 0.9, ha="right", va="center")
