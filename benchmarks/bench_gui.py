@@ -85,18 +85,22 @@ def bench_update() -> tuple[float, float, dict]:
     lo, hi = f.limits
     sizes = [lo + (hi - lo) * (i % 20) / 19 for i in range(ROUNDS)]
     # what-if update: model state (readouts follow on the signal) + re-mesh + re-render
-    upd = []
+    v = w.view3d
+    upd, frames = [], 0
     for s in sizes:
+        before = v.renders
         t0 = time.perf_counter()
         m.set_state(hole, size=s)
-        w.view3d.update_now()
+        v.update_now()
         upd.append(time.perf_counter() - t0)
-        app.processEvents()
+        app.processEvents()  # the widget's paint and the 2D view (untimed)
+        frames += v.renders - before
+    renders = frames / len(sizes)
     bare = []
     for _ in range(ROUNDS):
-        w.view3d.plotter.camera.Azimuth(0.5)  # a real redraw, not a cached frame
+        v.plotter.camera.Azimuth(0.5)  # a real redraw, not a cached frame
         t0 = time.perf_counter()
-        w.view3d.plotter.render()
+        v.plotter.render()
         bare.append(time.perf_counter() - t0)
     two_d = []
     for s in sizes[:10]:
@@ -110,6 +114,7 @@ def bench_update() -> tuple[float, float, dict]:
         w.readouts.refresh()
         read.append(time.perf_counter() - t0)
     extra = {"2D view redraw (shown tab)": statistics.median(two_d), "readout table refresh": statistics.median(read)}
+    extra["3D frames rendered per what-if update, the widget's paint included"] = renders
     w.model.undo_stack.setClean()
     w.view3d.close_plotter()
     w.close()
@@ -125,7 +130,7 @@ def main() -> int:
     print(f"    bare re-render of the same actors:                 {bare * 1e3:8.1f} ms")
     print(f"    ratio {upd / bare:.2f}  (target <= 1.5)")
     for k, v in extra.items():
-        print(f"    for information, {k}: {v * 1e3:.1f} ms")
+        print(f"    for information, {k}: " + (f"{v * 1e3:.1f} ms" if k.startswith(("2D", "readout")) else f"{v:g}"))
     app_t = sorted(_start(APP_START, str(SCENE)) for _ in range(STARTS))
     bare_t = sorted(_start(BARE_START) for _ in range(STARTS))
     a, b = statistics.median(app_t), statistics.median(bare_t)

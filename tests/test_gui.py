@@ -149,6 +149,82 @@ def test_share_and_direction_controls_move_the_state_and_the_fit(qtbot):
     _close(win)
 
 
+def _props(view) -> list:
+    """Every actor / 2D prop in the 3D view's renderer (read from VTK)."""
+    props = view.plotter.renderer.GetViewProps()
+    return [props.GetItemAsObject(i) for i in range(props.GetNumberOfItems())]
+
+
+def _label_texts(view) -> list[str]:
+    """The strings of every 3D point label, read from the label actors' VTK pipelines."""
+    out = []
+    for a in view.actors.get("labels", []):
+        data = a.GetMapper().GetInputAlgorithm().GetInputDataObject(0, 0)
+        arr = data.GetPointData().GetAbstractArray("labels")
+        out += [arr.GetValue(i) for i in range(arr.GetNumberOfValues())]
+    return out
+
+
+def test_slider_moves_keep_the_3d_actors_and_their_text_follows(qtbot):
+    from geom.analysis import clearance_at
+    from geom.boundaries import bonus
+
+    win = _open(qtbot)
+    v, m = win.view3d, win.model
+    u = m.scene.units
+    hole, pin = m.scene.feature("cap-bore"), m.scene.feature("dowel")
+    c = win.whatif.groups["cap-bore"]
+    v.layer_actions["readouts"].setChecked(True)  # the numbers on the picture, produced size among them
+    qtbot.wait(300)  # the window's layout settles (a resize re-makes the text for the new size)
+    qtbot.waitUntil(lambda: v._fresh is None, timeout=10_000)  # that frame is on screen
+    before = _props(v)
+    assert v.actors["readouts"] and v.actors["labels"]
+    kept = 0
+    for step in (c.size.STEPS // 3, c.size.STEPS, c.size.STEPS // 2):
+        renders, size_before = v.renders, tuple(v.plotter.window_size)
+        with qtbot.waitSignal(v.rendered, timeout=30_000):
+            c.size.slider.setValue(step)
+        qtbot.waitUntil(lambda: v._fresh is None, timeout=10_000)
+        # no actor added or removed: the count stays, so no leak over many moves
+        assert len(_props(v)) == len(before)
+        if tuple(v.plotter.window_size) == size_before:  # (a resize re-makes the text overlays)
+            # the very same actors, and one frame: the widget's paint shows it without rendering again
+            assert _props(v) == before
+            assert v.renders - renders == 1
+            kept += 1
+        before = _props(v)
+        size = m.states["cap-bore"].size
+        # the produced-size readout in 3D shows the new size and geom's bonus at it (geom.boundaries)
+        lines = "\n".join(a.GetInput() for a in v.actors["readouts"]).splitlines()
+        produced = [ln for ln in lines if ln.strip().startswith(f"produced {u.fmt(size)}")]
+        assert produced and f"bonus {u.fmt(bonus(hole, size))}" in produced[0]
+    assert kept >= 2  # the window kept its size for most moves: the in-place path was checked
+    # the tightest-spot label follows a share move: geom's what-if clearance (geom.analysis)
+    with qtbot.waitSignal(v.rendered, timeout=30_000):
+        c.share.spin.setValue(40.0)
+    assert _props(v) == before
+    gap = clearance_at(hole, pin, m.states["cap-bore"], m.states["dowel"])
+    assert gap > 0  # at 40 % of the tolerance used the parts clear (the banner says so too)
+    assert f"tightest {u.fmt(gap, signed=True)} {u.value}" in {t.split(" (")[0] for t in _label_texts(v)}
+    # a burst of moves before the event loop turns costs one rebuild and one frame
+    renders, rebuilt = v.renders, []
+    v.rendered.connect(lambda: rebuilt.append(1))
+    for pct in (50.0, 60.0, 70.0):
+        c.share.spin.setValue(pct)
+    qtbot.waitUntil(lambda: bool(rebuilt) and v._fresh is None, timeout=30_000)
+    qtbot.wait(100)
+    assert len(rebuilt) == 1 and v.renders - renders == 1
+    assert _props(v) == before
+    # what the in-place update shows is what a full rebuild of the same state shows
+    moved = np.asarray(v.image())
+    v.set_layer("rc", True)
+    v.set_layer("rc", False)  # every actor made anew from the same scene
+    assert _props(v) != before
+    again = np.asarray(v.image())
+    assert np.array_equal(again, moved), f"{np.count_nonzero(np.any(again != moved, axis=-1))} pixels differ"
+    _close(win)
+
+
 # ---------------------------------------------------------------- bad input
 
 
@@ -388,6 +464,14 @@ def test_load_points_readouts_equal_geom_inspect(qtbot, tmp_path):
     # the demo's point (scene file comment): the median line fails, the gauge (surface) accepts
     assert (ref.axis_conforms, ref.surface_conforms) == (False, True)
     assert "axis FAILS" in win.verdict.text() and "surface CONFORMS" in win.verdict.text()
+    # geom says the surface (gauge) reading governs: the banner is amber, not the red of a failure
+    assert any("surface (gauge) reading" in e for e in ref.explanation)
+    from viewer.app.panels import AMBER, BAD_RED
+
+    assert win.verdict.state == "conforms by surface"
+    assert "CONFORMS by the governing surface (gauge) reading; the axis reading fails" in win.verdict.text()
+    sheet = win.verdict.styleSheet().lower()
+    assert AMBER.lower() in sheet and BAD_RED.lower() not in sheet
     for i, e in enumerate(ref.explanation):
         assert v(f"explanation {i + 1}") == e
     # the 3D view shows geom's verdict lines for this result
@@ -401,6 +485,35 @@ def test_load_points_readouts_equal_geom_inspect(qtbot, tmp_path):
     assert v("bonus") == u.fmt(rel.bonus)
     assert v("tolerance allowed") == u.fmt(rel.tolerance_allowed)
     assert v("axis outcome") == rel.axis_check.outcome
+    _close(win)
+
+
+def test_inspection_failing_by_the_surface_reading_stays_red(qtbot, tmp_path):
+    import shutil
+    from dataclasses import replace
+
+    from geom.inspect import inspect_feature
+    from geom.scenefile import load, save
+
+    # the demo bore with a tighter tolerance (0.008): VC 7.992 at MMC 8.000 (ASME Y14.5: VC = MMC - t)
+    sc = load(CAP)
+    f = sc.feature("cap-bore")
+    f = f.with_(tolerance=replace(f.tolerance, value=0.008))
+    sc = replace(sc, features=tuple(f if g.id == "cap-bore" else g for g in sc.features))
+    path = tmp_path / "tight.toml"
+    save(sc, path)
+    shutil.copy(CAP_CSV, tmp_path / CAP_CSV.name)
+    ref = inspect_feature(load(path), "cap-bore", points=str(CAP_CSV))  # independent: geom in the test
+    assert ref.surface_conforms is False  # the governing reading fails: a genuine failure
+    win = _open(qtbot, path)
+    assert _wait_inspection(qtbot, win, lambda: win.model.set_focus("inspection", "cap-bore")) is True
+    from viewer.app.panels import AMBER, BAD_RED
+
+    assert win.verdict.state == "fails"
+    assert win.verdict.text().startswith("✖") and "surface FAILS" in win.verdict.text()
+    assert "governing" not in win.verdict.text()
+    sheet = win.verdict.styleSheet().lower()
+    assert BAD_RED.lower() in sheet and AMBER.lower() not in sheet
     _close(win)
 
 

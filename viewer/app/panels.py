@@ -27,6 +27,9 @@ ERROR_STYLE = "border: 2px solid #c62828; background: #fff3f3;"
 from viewer import style
 
 OK_GREEN, BAD_RED, NEUTRAL = style.OK, style.INTERFERENCE, "#455a64"
+# conforms by the governing reading while another reading fails: neither the green of a clean pass
+# nor the red of a failure (text on AMBER_BG: contrast 5.3:1)
+AMBER, AMBER_BG = "#9A5200", "#fff3e0"
 
 
 def _text_value(text: str):
@@ -863,6 +866,8 @@ class VerdictBanner(QFrame):
                     f"<span style='font-family:monospace'>{v.formula}</span>")
 
     def _inspection(self, fid: str) -> None:
+        from geom.inspect import GOVERNS_ASME, GOVERNS_ISO  # loaded once an inspection is shown
+
         res = self.model.shown_inspection()
         if res is None:
             self.state = "none"
@@ -872,22 +877,34 @@ class VerdictBanner(QFrame):
         checks = (res.size_check, res.axis_check, res.surface_check)
         words = [f"{c.name} {check_word(c)}" for c in checks]
         failed = any(c.conforms is False for c in checks)
-        self.state = "fails" if failed else "conforms"
-        fg, bg = (BAD_RED, "#ffebee") if failed else (OK_GREEN, "#e8f5e9")
-        lead = "✖" if failed else "✔"
         rule = ("ISO 14253-1 decision rule, U = " + self.model.scene.units.fmt(res.uncertainty) + " (k = 2)"
                 if res.uncertainty is not None else "no uncertainty U given: measured values alone")
         detail = f"Measured {res.feature.kind.value} {fid}, bonus from the {res.bonus_basis} envelope; {rule}."
-        governs = next((e for e in res.explanation if "governs" in e or "is the requirement" in e), None)
-        if governs:  # geom's sentence on which reading decides when axis and surface disagree
+        # geom's sentence on which reading decides when axis and surface disagree: the surface
+        # (gauge) reading governs (ASME Y14.5 / ISO 2692 as geom.inspect cites them)
+        governs = next((e for e in res.explanation if e in (GOVERNS_ASME, GOVERNS_ISO)), None)
+        if governs:
             detail += "<br>" + _html(governs)
+        if governs and res.axis_check.conforms is False and res.surface_check.conforms is True \
+                and res.size_check.conforms is not False:
+            # geom says the surface reading governs, and it conforms; only the axis reading fails
+            self.state = "conforms by surface"
+            self._paint(AMBER, AMBER_BG, f"✔ INSPECTION {fid}: CONFORMS by the governing surface (gauge) "
+                        f"reading; the axis reading fails ({', '.join(words)})", detail)
+            return
+        self.state = "fails" if failed else "conforms"
+        fg, bg = (BAD_RED, "#ffebee") if failed else (OK_GREEN, "#e8f5e9")
+        lead = "✖" if failed else "✔"
         self._paint(fg, bg, f"{lead} INSPECTION {fid}: " + ", ".join(words), detail)
 
     def _paint(self, fg: str, bg: str, head: str, detail: str) -> None:
-        self.setStyleSheet(f"#verdict {{ background: {bg}; border: 2px solid {fg}; border-radius: 4px; }}"
-                           f" QLabel {{ color: {fg}; }}")
-        self.headline.setText(head)
-        self.detail.setText(detail)
+        sheet = f"#verdict {{ background: {bg}; border: 2px solid {fg}; border-radius: 4px; }} QLabel {{ color: {fg}; }}"
+        if sheet != self.styleSheet():  # re-styling is costly; a what-if move mostly keeps the colour
+            self.setStyleSheet(sheet)
+        if head != self.headline.text():
+            self.headline.setText(head)
+        if detail != self.detail.text():
+            self.detail.setText(detail)
 
     def text(self) -> str:
         return self.headline.text()

@@ -2,13 +2,18 @@
 
 Both rebuild from the model on its signals: the meshes come from :mod:`viewer.scene3d`, the
 figures from :mod:`viewer.figures`; nothing here computes a tolerance number.
-Updates are coalesced: a burst of slider moves costs one rebuild per event-loop turn.
+Updates are coalesced: a burst of slider moves costs one rebuild per event-loop turn (one
+zero-delay single-shot timer per view). A what-if move keeps the 3D actors: the new meshes are
+handed to the existing mappers and the text labels and readouts get their new strings and
+anchor points in place; actors are only re-made when the scene's structure changes.
 """
 
 from __future__ import annotations
 
 import time
-from dataclasses import replace
+from dataclasses import dataclass, replace
+
+import numpy as np
 
 from PyQt5.QtCore import QEvent, QObject, QTimer, pyqtSignal
 from PyQt5.QtWidgets import (
@@ -88,8 +93,15 @@ class View3D(QWidget):
         self.caption.setToolTip("Tolerances are tiny against sizes: radial deviations are drawn enlarged")
         bar.addWidget(self.caption)
         lay.addLayout(bar)
-        self.plotter = QtInteractor(self)
+        # auto_update=False: pyvistaqt would otherwise re-render the whole scene five times a
+        # second while idle; every change here renders once, explicitly
+        self.plotter = QtInteractor(self, auto_update=False)
         self.plotter.set_background("white")
+        self.renders = 0  # frames VTK has finished in this view
+        self.plotter.render_window.AddObserver("EndEvent", self._count_render)
+        self._fresh = None  # the frame count right after render(): the next paint need not render
+        self._paint_filter = _PaintFresh(self)
+        self.plotter.interactor.installEventFilter(self._paint_filter)
         lay.addWidget(self.plotter.interactor, 1)
         self.legend = QLabel()
         self.legend.setWordWrap(True)
@@ -106,7 +118,15 @@ class View3D(QWidget):
         self.cut_iso = True  # iso drawn cut open at the plane of the tilt, as the report draws it
         self._cut = None  # is the scene shown cut open?
         self._shown_cache = None  # ((id of the scene, view), scene, scene as shown)
-        self._resize_filter = _OnResize(self._place_scalar_bar)
+        self._sig = None  # structure of the scene whose actors are on the plotter
+        self._labels: list[_LabelSlot] | None = None  # label actors that can take new text in place
+        self._readouts: list[_TextSlot] | None = None  # readout text actors, likewise
+        self._text_key = None  # (window size, layers shown) the text actors were made for
+        self._timer = QTimer(self)  # the coalescing timer: one rebuild per event-loop turn
+        self._timer.setSingleShot(True)
+        self._timer.setInterval(0)
+        self._timer.timeout.connect(self.update_now)
+        self._resize_filter = _OnResize(self._resized)
         self.plotter.interactor.installEventFilter(self._resize_filter)
         model.statesChanged.connect(self.schedule)
         model.sceneChanged.connect(self.schedule)
@@ -123,9 +143,10 @@ class View3D(QWidget):
     # ------------------------------------------------------------ building
 
     def schedule(self) -> None:
-        if not self._pending:
-            self._pending = True
-            QTimer.singleShot(0, self.update_now)
+        """Ask for a rebuild on the next event-loop turn; more requests before then are merged."""
+        self._pending = True
+        if not self._timer.isActive():
+            self._timer.start()
 
     def build(self):
         """The Scene3D of the focus at the current what-if states; for an inspection the scene
@@ -142,6 +163,7 @@ class View3D(QWidget):
 
     def update_now(self) -> None:
         self._pending = False
+        self._timer.stop()  # a rebuild asked for before this one is served by it
         if self.closed:
             return
         t0 = time.perf_counter()
@@ -161,8 +183,19 @@ class View3D(QWidget):
             self._readd()
         if first:
             self.set_view(self.current_view, render=False)
-        self.plotter.render()
+        self.render()
         self.rendered.emit()
+
+    def _count_render(self, _obj=None, _event=None) -> None:
+        self.renders += 1
+
+    def render(self) -> None:
+        """Render the scene now, once. The widget's next paint only puts this frame on screen
+        (pyvistaqt's paint would otherwise render the unchanged scene a second time)."""
+        if self.closed:
+            return
+        self.plotter.render()
+        self._fresh = self.renders
 
     def _shown(self, view: str | None = None):
         """The scene as drawn from the camera ``view`` (:func:`viewer.scene3d.view_scene`: cut open
@@ -181,33 +214,77 @@ class View3D(QWidget):
 
     def _update_in_place(self) -> bool:
         """Same focus, same layers, same meshes by name: hand the new meshes to the existing
-        actors (no new actors, no new mappers) and re-add only the text. False if the
-        structure changed and a full re-add is needed."""
+        actors' pipelines (no new actors, no new mappers; an unchanged shared mesh is left alone) and give
+        the text actors their new strings, colours and anchor points. False if the structure
+        changed and a full re-add is needed."""
         shown = self._shown()
-        if self._signature(shown) != getattr(self, "_sig", None):
+        if self._signature(shown) != self._sig:
             return False
-        p = self.plotter
+        pairs = []
         for name, items in shown.layers.items():
             if name not in self.visible or name in MESHLESS:
                 continue
             actors = self.actors.get(name, [])
             if len(actors) < len(items):
                 return False
-            for a, it in zip(actors, items):
-                a.mapper.SetInputData(it.mesh)
-                clim = it.style.get("clim")
-                if clim is not None:
-                    a.mapper.scalar_range = tuple(clim)
-        for layer in MESHLESS - {"legend"}:
-            for a in self.actors.get(layer, []):
-                p.remove_actor(a, render=False)
-            self.actors[layer] = []
-        text_only = replace(shown, layers={})
-        added = self.scene3d_mod.add_to_plotter(p, text_only, set(self.visible) - {"legend"}) or {}
-        for layer in MESHLESS - {"legend"}:
-            self.actors[layer] = [a for a in added.get(layer, []) if a is not None]
+            pairs += zip(actors, items)
+        for a, it in pairs:
+            mapper = a.GetMapper()
+            head = _pipeline_head(mapper)
+            if head.GetInputDataObject(0, 0) is not it.mesh:
+                head.SetInputDataObject(0, it.mesh)
+            clim = it.style.get("clim")
+            if clim is not None and tuple(mapper.GetScalarRange()) != tuple(clim):
+                a.mapper.scalar_range = tuple(clim)  # pyvista's setter: the mapper and its lookup table
+        if not self._update_text(shown):
+            return False  # all made anew, so that the overlays keep their drawing order
         self._update_legend(shown)
         return True
+
+    def _text_layers(self) -> set[str]:
+        """The layers add_to_plotter is asked to draw as text on a what-if update."""
+        return set(self.visible) - {"legend"}
+
+    def _update_text(self, shown) -> bool:
+        """Labels and readouts of ``shown`` into the existing text actors. False (nothing
+        touched) if their number, grouping, fonts or the layout of the readout block would differ
+        (or the window was resized): then every actor is made anew."""
+        show = self._text_layers()
+        if self._labels is None or self._readouts is None \
+                or self._text_key != (tuple(self.plotter.window_size), frozenset(show)):
+            return False
+        groups = _label_groups(shown, show)
+        if [(k, len(v)) for k, v in groups] != [(sl.key, len(sl.texts)) for sl in self._labels]:
+            return False
+        texts = _readout_texts(shown, show)
+        if [k for k, _t, _c in texts] != [sl.kind for sl in self._readouts]:
+            return False
+        # the readout block is laid out from the heights of its texts: the same heights keep every
+        # position, so only the strings change; otherwise it is laid out anew
+        heights = [_text_height(t, sl.actor.GetTextProperty()) if t != sl.text else sl.height
+                   for (_k, t, _c), sl in zip(texts, self._readouts)]
+        if heights != [sl.height for sl in self._readouts]:
+            return False
+        for sl, (_k, lbs) in zip(self._labels, groups):
+            sl.set([lb.text for lb in lbs], np.array([lb.point for lb in lbs], dtype=float))
+        for sl, (_k, t, c) in zip(self._readouts, texts):
+            sl.set(t, c)
+        return True
+
+    def _record_text(self, shown) -> None:
+        """Remember which text actor holds which label group / readout line, after checking
+        that the actors add_to_plotter made hold exactly those strings (else: no in-place
+        updates, the text is re-made each time)."""
+        show = self._text_layers()
+        self._text_key = (tuple(self.plotter.window_size), frozenset(show))
+        groups = _label_groups(shown, show)
+        actors = self.actors.get("labels", [])
+        labels = [_LabelSlot.of(a, k, lbs) for a, (k, lbs) in zip(actors, groups)]
+        self._labels = labels if len(actors) == len(groups) and all(labels) else None
+        texts = _readout_texts(shown, show)
+        actors = self.actors.get("readouts", [])
+        readouts = [_TextSlot.of(a, k, t) for a, (k, t, _c) in zip(actors, texts)]
+        self._readouts = readouts if len(actors) == len(texts) and all(readouts) else None
 
     def _readd(self, shown=None) -> None:
         p = self.plotter
@@ -225,18 +302,33 @@ class View3D(QWidget):
         # the legend box is unreadably small in a window-sized view: the same rows are shown as
         # Qt text under the view; the clearance colour bar stays in the picture
         self._sig = self._signature(shown)
+        self._record_text(shown)
         self._update_legend(shown)
         self._place_scalar_bar()
 
-    def _place_scalar_bar(self) -> None:
+    def _resized(self) -> None:
+        """After a resize: keep the colour bar in view and make the text overlays (sized and
+        placed for the window) anew, as a fresh build at this size would draw them."""
+        if self.closed or self.current is None:
+            return
+        moved = self._place_scalar_bar()
+        stale = self._text_key is not None and self._text_key[0] != tuple(self.plotter.window_size)
+        if stale:
+            self._readd()
+        if moved or stale:
+            self.render()
+
+    def _place_scalar_bar(self) -> bool:
         """Keep the colour bar and its title inside the view: the title is centred over the bar
-        and is wider than it, so the bar moves left until the title's right end clears the edge."""
+        and is wider than it, so the bar moves left until the title's right end clears the edge.
+        True if a bar moved."""
         bars = list(self.plotter.scalar_bars.values()) if not self.closed else []
         if not bars:
-            return
+            return False
         import vtk
 
         w = max(int(self.plotter.window_size[0]), 1)
+        moved = False
         for bar in bars:
             bb = [0, 0, 0, 0]
             vtk.vtkTextRenderer().GetBoundingBox(bar.GetTitleTextProperty(), bar.GetTitle(), bb, 72)
@@ -244,7 +336,10 @@ class View3D(QWidget):
             width = bar.GetWidth()
             margin = 0.015
             x = min(0.90, 1.0 - margin - width / 2 - title_w / 2)
-            bar.SetPosition(max(0.5, x), bar.GetPosition()[1])
+            old = tuple(bar.GetPosition())
+            bar.SetPosition(max(0.5, x), old[1])
+            moved = moved or tuple(bar.GetPosition()) != old
+        return moved
 
     def _update_legend(self, shown) -> None:
         p = self.plotter
@@ -254,9 +349,10 @@ class View3D(QWidget):
                 a.SetVisibility(False)
         rows = [(lbl, col) for (lbl, col), layer in zip(shown.legend, shown.legend_layers)
                 if layer in self.visible]
-        self.legend.setText("  ".join(
-            f"<span style='color:{col}; font-size:14pt'>■</span>&nbsp;{_html(lbl)}" for lbl, col in rows)
-            if "legend" in self.visible else "")
+        text = "  ".join(f"<span style='color:{col}; font-size:14pt'>■</span>&nbsp;{_html(lbl)}"
+                         for lbl, col in rows) if "legend" in self.visible else ""
+        if text != self.legend.text():
+            self.legend.setText(text)
         self.legend.setVisible("legend" in self.visible and bool(rows))
 
     # ------------------------------------------------------------ camera and layers
@@ -272,13 +368,13 @@ class View3D(QWidget):
         # shows them in the table instead, so the picture is centred (the colour bar keeps its side)
         self.scene3d_mod.apply_view(self.plotter, replace(self.current, window_centre=WINDOW_CENTRE), view)
         if render:
-            self.plotter.render()
+            self.render()
 
     def set_layer(self, name: str, on: bool) -> None:
         (self.visible.add if on else self.visible.discard)(name)
         if self.current is not None and not self.closed:
             self._readd()
-            self.plotter.render()
+            self.render()
 
     def image(self):
         """The current 3D picture as an RGB array."""
@@ -288,6 +384,156 @@ class View3D(QWidget):
         if not self.closed:
             self.closed = True
             self.plotter.close()
+
+
+def _pipeline_head(mapper):
+    """The algorithm that takes the mesh as data in an actor's pipeline: the mapper itself, or
+    the first filter add_mesh put before it (e.g. the point normals of smooth shading). A new
+    mesh given there runs through the same filters as the one add_mesh was given."""
+    alg = mapper
+    while alg.GetNumberOfInputPorts() and alg.GetNumberOfInputConnections(0):
+        up = alg.GetInputAlgorithm(0, 0)
+        if up is None or up.IsA("vtkTrivialProducer"):
+            break
+        alg = up
+    return alg
+
+
+def _label_groups(scene, show: set[str]) -> list[tuple[tuple, list]]:
+    """The scene's labels as add_to_plotter groups them into one point-label actor each (same
+    colour, size, frame and justification), in its order; none if "labels" is not shown."""
+    if "labels" not in show:
+        return []
+    groups: dict[tuple, list] = {}
+    for lb in scene.labels:
+        if lb.layer in show or lb.layer == "labels":
+            groups.setdefault((lb.colour, lb.size, lb.layer == "datum", lb.justify), []).append(lb)
+    return list(groups.items())
+
+
+def _readout_texts(scene, show: set[str]) -> list[tuple[str, str, str]]:
+    """(kind, text, colour) of the readout text actors add_to_plotter makes, in its order."""
+    if "readouts" not in show:
+        return []
+    from viewer import style
+
+    head, _, rest = scene.caption.partition("\n")
+    out = [("title", scene.title, style.TEXT), ("readouts", "\n".join(scene.readouts), style.TEXT)]
+    out += [(k, t, style.TEXT) for k, t in (("caption", head), ("caption detail", rest)) if t]
+    if scene.verdict:
+        out.append(("verdict", scene.verdict, scene.verdict_colour))
+    out += [("verdict line", t, c) for t, c in scene.verdicts]
+    return out
+
+
+def _text_height(text: str, prop) -> int:
+    """Height in pixels of ``text`` in the text property ``prop`` (as the layout measures it)."""
+    import vtk
+
+    bb = [0, 0, 0, 0]
+    vtk.vtkTextRenderer().GetBoundingBox(prop, text, bb, 72)
+    return int(bb[3] - bb[2] + 1)
+
+
+@dataclass
+class _LabelSlot:
+    """One point-label actor and the points + strings feeding its label hierarchy."""
+
+    actor: object
+    key: tuple
+    data: object  # the vtkPolyData with the anchor points and the "labels" string array
+    texts: list
+    points: np.ndarray
+
+    @classmethod
+    def of(cls, actor, key, lbs):
+        import vtk
+
+        mapper = actor.GetMapper()
+        if not isinstance(mapper, vtk.vtkLabelPlacementMapper):
+            return None
+        hier = mapper.GetInputAlgorithm()
+        data = hier.GetInputDataObject(0, 0) if hier is not None else None
+        arr = data.GetPointData().GetAbstractArray("labels") if data is not None else None
+        texts = [lb.text for lb in lbs]
+        if arr is None or [arr.GetValue(i) for i in range(arr.GetNumberOfValues())] != texts:
+            return None
+        pts = np.array([data.GetPoint(i) for i in range(data.GetNumberOfPoints())], dtype=float)
+        return cls(actor, key, data, texts, pts)
+
+    def set(self, texts: list, points: np.ndarray) -> None:
+        """New strings and anchor points; the hierarchy re-places them at the next render."""
+        changed = False
+        if texts != self.texts:
+            arr = self.data.GetPointData().GetAbstractArray("labels")
+            for i, t in enumerate(texts):
+                arr.SetValue(i, t)
+            arr.Modified()
+            self.texts = list(texts)
+            changed = True
+        if points.shape != self.points.shape or not np.array_equal(points, self.points):
+            vp = self.data.GetPoints()
+            for i, q in enumerate(points):
+                vp.SetPoint(i, *q)
+            vp.Modified()
+            self.points = points
+            changed = True
+        if changed:
+            self.data.Modified()
+
+
+@dataclass
+class _TextSlot:
+    """One screen-text actor of the readout block."""
+
+    actor: object
+    kind: str
+    text: str
+    height: int
+
+    @classmethod
+    def of(cls, actor, kind, text):
+        if not hasattr(actor, "GetInput") or actor.GetInput() != text:
+            return None
+        return cls(actor, kind, text, _text_height(text, actor.GetTextProperty()))
+
+    def set(self, text: str, colour: str) -> None:
+        from viewer import style
+
+        if text != self.text:
+            self.actor.SetInput(text)
+            self.text = text
+        tp = self.actor.GetTextProperty()
+        rgb = style.rgb(colour)
+        if tuple(tp.GetColor()) != rgb:
+            tp.SetColor(*rgb)
+
+
+class _PaintFresh(QObject):
+    """Event filter on the 3D widget: a paint that follows :meth:`View3D.render` with no other
+    frame and no resize in between shows that frame without rendering the scene again (the
+    interactor's render is switched off for that one paint). Every other paint renders."""
+
+    def __init__(self, view: View3D):
+        super().__init__()
+        self.view = view
+
+    def eventFilter(self, obj, event):
+        v = self.view
+        t = event.type()
+        if t == QEvent.Resize:
+            v._fresh = None
+        elif t == QEvent.Paint and v._fresh is not None:
+            fresh, v._fresh = v._fresh == v.renders, None
+            iren = v.plotter.render_window.GetInteractor() if not v.closed else None
+            if fresh and iren is not None and iren.GetEnableRender():
+                iren.EnableRenderOff()
+                try:
+                    obj.event(event)
+                finally:
+                    iren.EnableRenderOn()
+                return True
+        return False
 
 
 class _OnResize(QObject):
