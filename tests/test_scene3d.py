@@ -19,7 +19,6 @@ from viewer.scene3d import (
 )
 
 pv = pytest.importorskip("pyvista")
-pv.OFF_SCREEN = True
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 SCENES = sorted(glob.glob(os.path.join(ROOT, "scenes", "*.toml")))

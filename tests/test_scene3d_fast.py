@@ -14,7 +14,6 @@ from geom.boundaries import FeatureState
 from viewer import scene3d as S3
 
 pv = pytest.importorskip("pyvista")
-pv.OFF_SCREEN = True
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 

@@ -18,7 +18,6 @@ from viewer.scene3d import (
 )
 
 pv = pytest.importorskip("pyvista")
-pv.OFF_SCREEN = True
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 SCAN = os.path.join(ROOT, "scenes", "cap_bore_inspection.toml")
