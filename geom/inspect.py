@@ -178,6 +178,9 @@ class InspectionResult:
     explanation: tuple[str, ...]
     notes: tuple[str, ...] = ()
     warnings: tuple[str, ...] = field(default=())
+    # the same reading taken on the axis of the unrelated envelope (ASME's "feature axis"),
+    # shown beside the derived-median-line reading the verdict uses
+    feature_axis: AxisReading | None = None
 
     @property
     def size_conforms(self) -> bool | None:
@@ -574,7 +577,10 @@ def _from_values(scene: Scene, feature: Feature, bonus_basis: str) -> Inspection
     return _finish(
         scene, feature, bonus_basis, source="values", source_file=scene.source, points=None, point_section=None,
         radial=None, sections=(), median_line=None if axis is None or not len(axis.line) else axis.line,
-        unrelated=unrelated, related=related, lm_un=lm_un, lm_rel=lm_rel, local=m.local_sizes, axis=axis,
+        # under LMC the typed sizes are minimum material envelopes, not mating envelopes: Rule #1
+        # (which needs the mating envelope) is then not evaluated rather than judged on the wrong size
+        unrelated=None if lm_un is not None else unrelated, related=None if lm_rel is not None else related,
+        lm_un=lm_un, lm_rel=lm_rel, local=m.local_sizes, axis=axis,
         U=m.uncertainty, ls=None, notes=notes, warnings=[])
 
 
@@ -732,6 +738,25 @@ def _finish(scene, feature, bonus_basis, *, source, source_file, points, point_s
             what = what.replace("related", "unrelated")
         surface_check = Check("surface", c.conforms, c.outcome, f"{what} {c.detail} ({vcn})", c.values, c.low, c.high)
 
+    feature_axis = None
+    if points is not None and un_env is not None and tol is not None and tol.datums:
+        zz = np.array([-tol.projected, 0.0]) if tol.projected else np.array([0.0, feature.length])
+        line = np.c_[[un_env.at_z(z) for z in zz], zz]
+        r = _axis_reading(feature, line, _line_through(line, 0.0))
+        if r is not None:
+            feature_axis = AxisReading(r.deviation, r.diameter_reading, r.width_reading,
+                                       "feature axis: the axis of the unrelated envelope over "
+                                       f"z = {zz[0]:g} .. {zz[1]:g} (ASME Y14.5-2009 §1.3 'feature axis', from memory)",
+                                       r.line)
+            if (axis is not None and axis.deviation is not None and allowed is not None
+                    and (axis.deviation <= allowed) != (r.deviation <= allowed)):
+                notes.append(
+                    f"the feature axis (axis of the unrelated envelope) needs {fmt(r.deviation)}, the derived "
+                    f"median line {fmt(axis.deviation)}: they fall on opposite sides of the tolerance allowed "
+                    f"{fmt(allowed)}. The axis verdict follows the derived median line (ISO 1101's extracted "
+                    "median line; the section centres); an ASME reading on the feature axis would differ, "
+                    "and the surface (gauge) reading is the functional check either way.")
+
     explanation = _explain(feature, std, units, axis_check, surface_check, sections, un_env, rel_env, ls, bonus,
                            allowed, axis)
     return InspectionResult(
@@ -745,7 +770,7 @@ def _finish(scene, feature, bonus_basis, *, source, source_file, points, point_s
         axis=axis, bonus_basis=bonus_basis, bonus=bonus, tolerance_allowed=allowed, virtual_condition=vc,
         uncertainty=U, formulas=tuple(formulas), size_check=size_check, local_check=local_check,
         envelope_check=env_check, axis_check=axis_check, surface_check=surface_check, least_squares=ls,
-        explanation=tuple(explanation), notes=tuple(notes), warnings=tuple(warnings))
+        explanation=tuple(explanation), notes=tuple(notes), warnings=tuple(warnings), feature_axis=feature_axis)
 
 
 GOVERNS_ASME = ("ASME Y14.5-2009 §7.3.3.1 (from memory; the same words carry into Y14.5-2018's position "
@@ -753,6 +778,22 @@ GOVERNS_ASME = ("ASME Y14.5-2009 §7.3.3.1 (from memory; the same words carry in
                 "surface interpretation takes precedence. The surface (gauge) reading governs.")
 GOVERNS_ISO = ("ISO 2692:2021 (from memory) states the maximum/least material requirement as a virtual "
                "condition the surface must not violate, so the surface (gauge) reading is the requirement.")
+
+
+def _axis_difference(ls_axis, dml_axis, units: Units) -> str:
+    """Mention the axis readings only where they differ, with a digit more if the usual
+    precision would print them equal."""
+    if ls_axis is None or dml_axis is None:
+        return ""
+    fmt = units.fmt
+    if fmt(ls_axis) == fmt(dml_axis):
+        if round(ls_axis, units.decimals + 1) == round(dml_axis, units.decimals + 1):
+            return ""
+        d = units.decimals + 1
+        a, b = f"{ls_axis:.{d}f}", f"{dml_axis:.{d}f}"
+    else:
+        a, b = fmt(ls_axis), fmt(dml_axis)
+    return f", and reads the axis of the fitted cylinder ({a}) instead of the section centres ({b})"
 
 
 def _explain(feature, std, units, axis_check, surface_check, sections, un_env, rel_env, ls, bonus, allowed, axis):
@@ -781,6 +822,9 @@ def _explain(feature, std, units, axis_check, surface_check, sections, un_env, r
                 f"({surface_check.detail}). Form error (bend, lobing, taper) narrows the datum-held "
                 "envelope more than the section centres show." + form)
         out.append(GOVERNS_ASME if std is Standard.ASME else GOVERNS_ISO)
+        if std is Standard.ASME and feature.tolerance.characteristic is not Characteristic.POSITION:
+            out.append(f"That clause is written for position; applying it to {feature.tolerance.characteristic.value} "
+                       "at MMC is an extension by analogy (the virtual condition is the same kind of boundary).")
     if ls is not None and ls.axis_conforms is not None and axis_check.conforms is not None:
         basis = "mating" if feature.tolerance.material is not Material.LMC else "minimum material"
         if ls.axis_conforms != axis_check.conforms or (surface_check.conforms is not None
@@ -790,10 +834,9 @@ def _explain(feature, std, units, axis_check, surface_check, sections, un_env, r
                 f"A least-squares printout would say the axis {'conforms' if ls.axis_conforms else 'does not conform'}: "
                 f"it takes the bonus from the least-squares size {fmt(ls.size)} (an average through the form "
                 f"error) instead of the {basis} envelope {fmt(env_d)}, giving tolerance allowed "
-                f"{fmt(ls.tolerance_allowed)} against {fmt(allowed)}, and reads the axis of the fitted "
-                f"cylinder ({fmt(ls.axis_deviation)}) instead of the section centres "
-                f"({fmt(None if axis is None else axis.deviation)}). That is why a gauge and a CMM printout "
-                "can disagree.")
+                f"{fmt(ls.tolerance_allowed)} against {fmt(allowed)}"
+                + _axis_difference(ls.axis_deviation, None if axis is None else axis.deviation, units)
+                + ". That is why a gauge and a CMM printout can disagree.")
     return out
 
 
@@ -844,6 +887,7 @@ def inspection_to_json(res: InspectionResult) -> dict:
         "axis_diameter_reading": None if res.axis is None else _r(res.axis.diameter_reading),
         "axis_width_reading": None if res.axis is None else _r(res.axis.width_reading),
         "axis_method": None if res.axis is None else res.axis.method,
+        "feature_axis_deviation": None if res.feature_axis is None else _r(res.feature_axis.deviation),
         "bonus_basis": res.bonus_basis,
         "bonus": _r(res.bonus),
         "tolerance_allowed": _r(res.tolerance_allowed),
@@ -943,6 +987,9 @@ def render_inspection(res: InspectionResult, title: str = "") -> str:
             parts.append(f"width reading {fmt(a.width_reading)}")
         zone = f.tolerance.zone.value if f.tolerance else ""
         out.append(f"  {', '.join(parts)}; the tolerance's {zone} zone uses {fmt(a.deviation)}")
+        fa = res.feature_axis
+        if fa is not None and fa.deviation is not None:
+            out.append(f"  beside it, {fa.method}: {zone} zone {fmt(fa.deviation)} (shown, not used for the verdict)")
         out.append("")
     if res.formulas:
         out.append(f"bonus basis: {res.bonus_basis} envelope"

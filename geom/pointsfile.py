@@ -16,6 +16,7 @@ from __future__ import annotations
 import io
 import math
 import os
+import warnings
 from dataclasses import dataclass
 
 import numpy as np
@@ -47,6 +48,9 @@ class PointCloud:
 
 def _header(first: str, file: str) -> tuple[list[str], dict[str, int]]:
     names = [h.strip().strip('"').strip().lower() for h in first.split(",")]
+    for k in COLUMNS + (SECTION,):
+        if names.count(k) > 1:
+            raise PointsError(file, f"header: column {k!r} appears {names.count(k)} times; expected it once", 1)
     idx = {}
     for k in COLUMNS + (SECTION,):
         if k in names:
@@ -91,6 +95,8 @@ def _slow_parse(lines: list[str], file: str, names: list[str], idx: dict[str, in
             cell = cells[idx[SECTION]]
             if not cell:
                 raise PointsError(file, "column 'section': expected a label, got an empty cell", no)
+            if cell.lower().lstrip("+-") in ("nan", "inf", "infinity"):
+                raise PointsError(file, f"column 'section': expected a label (a number or a name), got {cell!r}", no)
             secs.append(cell)
     if not xyz:
         raise PointsError(file, "no points: expected rows of x,y,z after the header")
@@ -115,8 +121,10 @@ def parse_points(src, file: str = "<points>") -> PointCloud:
     names, idx = _header(head, file)
     cols = [idx[k] for k in COLUMNS] + ([idx[SECTION]] if SECTION in idx else [])
     try:
-        arr = np.loadtxt(io.StringIO(text), delimiter=",", skiprows=first_i + 1, usecols=cols,
-                         ndmin=2, comments="#")
+        with warnings.catch_warnings():  # "input contained no data": the slow parse says it better
+            warnings.simplefilter("ignore", UserWarning)
+            arr = np.loadtxt(io.StringIO(text), delimiter=",", skiprows=first_i + 1, usecols=cols,
+                             ndmin=2, comments="#")
     except ValueError:
         return _slow_parse(text.splitlines()[first_i:], file, names, idx, first_i)
     if arr.shape[0] == 0 or arr.shape[1] != len(cols) or not np.isfinite(arr).all():

@@ -131,6 +131,11 @@ def main(argv: list[str] | None = None) -> int:
         return EXIT_BAD_INPUT
     except KeyboardInterrupt:
         return 130
+    except BrokenPipeError:  # output piped into `head` and the like: stop quietly
+        import os
+
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        return 0
 
 
 if __name__ == "__main__":

@@ -390,3 +390,28 @@ def test_import_geom_inspect_does_not_load_scipy():
     code = "import sys, geom.inspect, geom.pointsfile; print('scipy' in sys.modules)"
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"
+
+
+# ---------------------------------------------------------------- from an independent review
+
+
+def test_feature_axis_reading_of_an_exact_tilted_cylinder():
+    # ISO 10360-6 method (exact data): a straight tilted cylinder's own axis moves t over L, so the
+    # reading on the axis of the unrelated envelope (ASME "feature axis", Y14.5-2009 §1.3, from
+    # memory) equals the derived-median-line reading, t.
+    R, L, t = 4.0, 12.0, 0.02
+    r = inspect_feature(scene_with(), "f", points=cylinder_points(R, L, nsec=13, per=720, tilt=(t / L, 0.0)))
+    assert r.feature_axis.deviation == pytest.approx(t, abs=1e-9)
+    assert inspection_to_json(r)["feature_axis_deviation"] == pytest.approx(t, abs=1e-9)
+
+
+def test_lmc_typed_size_is_not_judged_as_a_mating_envelope():
+    # ASME Y14.5-2018 (from memory): Rule #1 needs the mating envelope; under LMC the typed size is
+    # the minimum material envelope, so the envelope check is not evaluated rather than guessed.
+    sc = scene_with(material=Material.LMC, measured=Measured(size=8.010, local_sizes=(8.012, 8.02),
+                                                              axis_deviation=0.01))
+    r = inspect_feature(sc, "f")
+    assert r.unrelated_ame is None and r.least_material.diameter == pytest.approx(8.010)
+    assert r.envelope_check.conforms is None
+    # bonus from the minimum material envelope: LMC - 8.010 = 0.020 (ASME LMC modifier, from memory)
+    assert r.bonus == pytest.approx(0.020)

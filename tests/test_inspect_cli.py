@@ -196,3 +196,25 @@ def test_no_points_and_no_values(capsys, scene):
 def test_far_from_size_warns(tmp_path, capsys, scene):
     code, out, err = run(capsys, scene, "--feature", "bore", "--points", ring_csv(tmp_path / "p.csv", R=4.5))
     assert code == 0 and "warning" in err and "far outside the limits" in err
+
+
+def test_header_with_a_repeated_column(tmp_path, capsys, scene):
+    csv = ring_csv(tmp_path / "p.csv")
+    lines = csv.read_text().splitlines()
+    lines[0] = lines[0] + ",x"
+    csv.write_text("\n".join(l + ",0" if i else l for i, l in enumerate(lines)) + "\n")
+    bad(capsys, scene, csv, "line 1", "'x' appears 2 times")
+
+
+def test_nan_section_label(tmp_path, capsys, scene):
+    csv = ring_csv(tmp_path / "p.csv", section=True)
+    lines = csv.read_text().splitlines()
+    lines[3] = ",".join(lines[3].split(",")[:3] + ["nan"])
+    csv.write_text("\n".join(lines) + "\n")
+    bad(capsys, scene, csv, "line 4", "expected a label")
+
+
+def test_empty_after_header_is_one_line(tmp_path, capsys, scene):
+    csv = tmp_path / "p.csv"
+    csv.write_text("x,y,z\n")
+    bad(capsys, scene, csv, "no points")
