@@ -354,3 +354,15 @@ def test_style_luminance_distinct():
     assert min(b - a for a, b in zip(lum, lum[1:])) > 0.015
     ramp = [S.luminance(c) for c in S.CLEARANCE_COLORS]
     assert ramp == sorted(ramp) and ramp[0] > S.luminance(S.INTERFERENCE) + 0.1
+
+
+def test_render_variants_equal_separate_renders(sensor):
+    # Independent: each variant must be pixel-identical to its own render_image call.
+    from viewer.scene3d import render_variants
+
+    s3 = build_mate_scene(sensor, 0)
+    bare = set(LAYERS) - set(HIDDEN_BY_DEFAULT) - {"readouts", "legend"}
+    got = render_variants(s3, "iso", {"full": (None, None), "bare": (None, bare)}, size=(480, 360))
+    assert np.array_equal(got["full"], render_image(s3, None, "iso", size=(480, 360)))
+    assert np.array_equal(got["bare"], render_image(s3, None, "iso", size=(480, 360), visible=bare))
+    assert not np.array_equal(got["full"], got["bare"])

@@ -431,11 +431,17 @@ def page_image_3d(scene3d_obj, view: str) -> np.ndarray:
     return crop_to_content(_bare_render(scene3d_obj, view))
 
 
+def _page_layers() -> set[str]:
+    """Layers drawn on the page's 3D picture: all but the text overlays (the page prints them)."""
+    from viewer import scene3d
+
+    return set(scene3d.LAYERS) - set(scene3d.HIDDEN_BY_DEFAULT) - {"readouts", "legend"}
+
+
 def _bare_render(scene3d_obj, view: str) -> np.ndarray:
     from viewer import scene3d
 
-    visible = set(scene3d.LAYERS) - set(scene3d.HIDDEN_BY_DEFAULT) - {"readouts", "legend"}
-    return scene3d.render_image(scene3d_obj, None, view=view, size=(1600, 1200), visible=visible)
+    return scene3d.render_image(scene3d_obj, None, view=view, size=(1600, 1200), visible=_page_layers())
 
 
 def inspection_images(scene3d_obj, view: str) -> list[tuple[str, np.ndarray]]:
@@ -494,8 +500,8 @@ def write_report(res: SceneResult, out_dir, sizes: dict[str, float] | None = Non
             s3 = scene3d.build_mate_scene(res, item.index, states=states)
         else:
             s3 = scene3d.build_feature_scene(res, item.feature_id, state=states[item.feature_id])
-        scene3d.render_image(s3, png, view=view, size=(1600, 1200))
-        images3d[item.file_key] = page_image_3d(s3, view)
+        pics = scene3d.render_variants(s3, view, {"full": (png, None), "page": (None, _page_layers())})
+        images3d[item.file_key] = crop_to_content(pics["page"])
         written.append(png)
         say(f"{item.label}: 3D view", [png])
         for name in VIEW_FILES:
