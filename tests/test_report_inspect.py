@@ -79,7 +79,7 @@ def test_inspection_page_carries_the_numbers_and_verdicts(cap_report, cap_inspec
     # the three verdicts with their ISO 14253-1 outcomes (from the InspectionResult)
     assert insp.axis_check.conforms is False and insp.surface_check.conforms is True
     assert "AXIS READING FAILS" in text
-    assert _squash(f"axis reading: FAILS") in flat and _squash("surface reading: CONFORMS") in flat
+    assert _squash("axis reading: FAILS") in flat and _squash("surface reading: CONFORMS") in flat
     assert _squash("size reading: CONFORMS") in flat
     for c in (insp.size_check, insp.axis_check, insp.surface_check):
         assert _squash(c.detail) in flat, c.detail

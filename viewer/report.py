@@ -13,7 +13,6 @@ comes from :mod:`geom.analysis` (through :mod:`geom.readout`), formatted at the 
 from __future__ import annotations
 
 import json
-import math
 import re
 import textwrap
 from dataclasses import dataclass
@@ -28,8 +27,7 @@ from matplotlib.patches import Rectangle
 from geom.analysis import SceneResult, clearance_at, mate_verdict, result_to_json, term
 from geom.boundaries import FeatureState, effective_size, tolerance_allowed
 from geom.model import Kind
-from geom.readout import CAUTION, STANDARD_NAME, feature_heading, feature_rows, mate_lines
-from geom.scenefile import REPORT_KEYS
+from geom.readout import CAUTION, feature_heading, feature_rows, mate_lines
 from viewer import figures as F
 from viewer import style as S
 
@@ -110,7 +108,6 @@ def effect_on_fit(res: SceneResult, item: Item, states: dict[str, FeatureState])
     if sub.is_mate:
         m = res.mates[item.index]
         hb, pb = m.hole_boundary, m.pin_boundary
-        ht, pt = sub.hole.tolerance, sub.pin.tolerance
         how = ("each at its maximum material size, each axis using all the tolerance it is allowed, tilted "
                "against each other")
         hvc, pvc = res.features[sub.hole.id].virtual_condition, res.features[sub.pin.id].virtual_condition
@@ -1043,7 +1040,6 @@ def draw_fastener(ax, res: SceneResult, fid: str, fs: float = 7.0) -> None:
     """A section through the fastener in both parts, to scale (scene units on both axes), with F,
     H and (fixed) P and D dimensioned at their true values. Part thicknesses of a floating pattern
     are not in the scene: they are drawn at an arbitrary thickness, and so are the screw head and nut."""
-    from matplotlib.patches import Polygon
 
     sc = res.scene
     u = sc.units

@@ -654,7 +654,7 @@ def _feature_geometry(res: SceneResult, f: Feature, st: FeatureState, ex: _Ex, c
                       b: _Built, primary: bool) -> dict[str, Any]:
     """Zone, zone axis, actual axis, surface, boundaries of one feature. Returns what the mate
     and clearance steps need (true and drawn axis, radii, z range)."""
-    u, std = res.scene.units, res.scene.standard
+    u = res.scene.units
     tol = f.tolerance
     place: AxisPlacement = worst_case_axis(f, st, samples=2)
     # shift to the drawing centre (a mating pin is drawn in its hole, on the hole's true position)
@@ -1072,7 +1072,7 @@ def _fastener_for(res: SceneResult, f: Feature):
 def _projected_note(b: _Built, res: SceneResult, f: Feature, st: FeatureState, ex: _Ex, centre) -> dict | None:
     """Projected zone: the mating part on the far side of A, with its clearance hole, and the
     fastener along the extended axis, coloured by its clearance to that hole."""
-    u, std = res.scene.units, res.scene.standard
+    u = res.scene.units
     tol = f.tolerance
     P = tol.projected
     place = worst_case_axis(f, st, samples=2)

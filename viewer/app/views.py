@@ -17,7 +17,7 @@ import numpy as np
 
 from PyQt5.QtCore import QEvent, QObject, QTimer, pyqtSignal
 from PyQt5.QtWidgets import (
-    QActionGroup, QHBoxLayout, QLabel, QMenu, QTabWidget, QToolButton, QVBoxLayout, QWidget,
+    QHBoxLayout, QLabel, QMenu, QTabWidget, QToolButton, QVBoxLayout, QWidget,
 )
 
 from .model import SceneModel

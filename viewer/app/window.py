@@ -9,7 +9,7 @@ import tempfile
 import traceback
 from pathlib import Path
 
-from PyQt5.QtCore import QObject, QSettings, Qt, QThread, QTimer, pyqtSignal
+from PyQt5.QtCore import QObject, QSettings, Qt, QThread, pyqtSignal
 from PyQt5.QtGui import QKeySequence
 from PyQt5.QtWidgets import (
     QAction, QFileDialog, QLabel, QMainWindow, QMessageBox, QProgressDialog, QScrollArea, QSplitter,
