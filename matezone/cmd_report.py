@@ -12,28 +12,38 @@ from pathlib import Path
 from matezone.cli import UserError
 
 
-def parse_sizes(specs: list[str], scene) -> dict[str, float]:
-    """``["id=6.010", ...]`` -> {id: size}, each checked against the feature's limits."""
-    from geom.boundaries import SizeOutOfLimits, check_size
-
+def _id_pairs(specs: list[str], scene, option: str, example: str):
+    """Yield ``(spec, id, value)`` from ``ID=VALUE`` options, each id a feature of the scene and
+    given once; anything else is one clear message."""
     ids = [f.id for f in scene.features]
-    sizes: dict[str, float] = {}
+    seen: set[str] = set()
     for spec in specs:
         fid, sep, val = spec.partition("=")
         fid, val = fid.strip(), val.strip()
         if not sep or not fid or not val:
-            raise UserError(f"--size {spec!r}: expected ID=VALUE, e.g. --size {ids[0]}={scene.features[0].mmc:g}")
+            what = "VALUE" if option == "--size" else "CSV"
+            raise UserError(f"{option} {spec!r}: expected ID={what}, e.g. {option} {ids[0]}={example}")
         if fid not in ids:
-            raise UserError(f"--size {spec!r}: no feature has the id {fid!r}; the scene's features are: "
+            raise UserError(f"{option} {spec!r}: no feature has the id {fid!r}; the scene's features are: "
                             + ", ".join(ids))
+        if fid in seen:
+            raise UserError(f"{option} {spec!r}: {fid!r} is given twice")
+        seen.add(fid)
+        yield spec, fid, val
+
+
+def parse_sizes(specs: list[str], scene) -> dict[str, float]:
+    """``["id=6.010", ...]`` -> {id: size}, each checked against the feature's limits."""
+    from geom.boundaries import SizeOutOfLimits, check_size
+
+    sizes: dict[str, float] = {}
+    for spec, fid, val in _id_pairs(specs, scene, "--size", f"{scene.features[0].mmc:g}"):
         try:
             v = float(val)
         except ValueError:
             raise UserError(f"--size {spec!r}: expected a number after '=', got {val!r}") from None
         if not math.isfinite(v):
             raise UserError(f"--size {spec!r}: expected a finite number, got {val!r}")
-        if fid in sizes:
-            raise UserError(f"--size {spec!r}: the size of {fid!r} is given twice")
         f = scene.feature(fid)
         try:
             check_size(f, v)
@@ -47,20 +57,7 @@ def parse_sizes(specs: list[str], scene) -> dict[str, float]:
 
 def parse_points(specs: list[str], scene) -> dict[str, str]:
     """``["id=scan.csv", ...]`` -> {id: path}; the files themselves are read by geom.pointsfile."""
-    ids = [f.id for f in scene.features]
-    points: dict[str, str] = {}
-    for spec in specs:
-        fid, sep, path = spec.partition("=")
-        fid, path = fid.strip(), path.strip()
-        if not sep or not fid or not path:
-            raise UserError(f"--points {spec!r}: expected ID=CSV, e.g. --points {ids[0]}=scan.csv")
-        if fid not in ids:
-            raise UserError(f"--points {spec!r}: no feature has the id {fid!r}; the scene's features are: "
-                            + ", ".join(ids))
-        if fid in points:
-            raise UserError(f"--points {spec!r}: points for {fid!r} are given twice")
-        points[fid] = path
-    return points
+    return {fid: path for _, fid, path in _id_pairs(specs, scene, "--points", "scan.csv")}
 
 
 def inspect_all(scene, points: dict[str, str], bonus_basis: str) -> dict:
