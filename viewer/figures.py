@@ -418,6 +418,16 @@ def through_view(res: SceneResult, subject, states=None, exaggeration: float | N
     return fig, data
 
 
+def _gap_text(u, clearance: float, interferes: bool, consequence: str, line_to_line: str) -> str:
+    """The dimension text of a diametral clearance or overlap (true value, and per side)."""
+    per, dia = _half(u, clearance / 2), u.fmt(abs(clearance))
+    if interferes:
+        return f"OVERLAP {dia} on ⌀\n({per} per side):\n{consequence}"
+    if abs(clearance) <= 1e-9:
+        return line_to_line
+    return f"clearance {dia} on ⌀\n({per} per side)"
+
+
 def _half(units, v: float) -> str:
     """A per-side (half) value: one decimal more than the units' precision, so that twice it
     reads as the diametral value."""
@@ -536,13 +546,7 @@ def _draw_through(ax, res: SceneResult, d: ThroughData, fs: float):
         a_, b_ = p0 * ri, p0 * ro
         ax.annotate("", xy=b_, xytext=a_, arrowprops=dict(arrowstyle="<|-|>", color=S.TEXT, lw=1.1, shrinkA=0,
                                                           shrinkB=0, mutation_scale=8), gid="gap-dim", zorder=9)
-        per, dia = _half(u, d.clearance / 2), u.fmt(abs(d.clearance))
-        if interferes:
-            txt = f"OVERLAP {dia} on ⌀\n({per} per side):\nthe pin does not fit"
-        elif abs(d.clearance) <= 1e-9:
-            txt = "line-to-line: zero clearance"
-        else:
-            txt = f"clearance {dia} on ⌀\n({per} per side)"
+        txt = _gap_text(u, d.clearance, interferes, "the pin does not fit", "line-to-line: zero clearance")
         tip = b_ if np.linalg.norm(b_) >= np.linalg.norm(a_) else a_
         calls.append((tuple(tip), txt, S.INTERFERENCE if interferes else S.TEXT, True, "gap-text"))
     ax.plot([0], [0], marker="+", color=S.ZONE_AXIS, ms=8, mew=1.0, zorder=8)
@@ -865,13 +869,7 @@ def _draw_section(ax, res: SceneResult, d: SectionData, fs: float):
         ax.annotate("", xy=(xp, zdim), xytext=(xh, zdim),
                     arrowprops=dict(arrowstyle="<|-|>", color=S.TEXT, lw=1.1, shrinkA=0, shrinkB=0, mutation_scale=7),
                     gid="gap-dim", zorder=10)
-        per, dia = _half(un, d.clearance / 2), un.fmt(abs(d.clearance))
-        if interferes:
-            txt = f"OVERLAP {dia} on ⌀\n({per} per side):\nthe pin hits the wall"
-        elif abs(d.clearance) <= 1e-9:
-            txt = "line-to-line:\nzero clearance"
-        else:
-            txt = f"clearance {dia} on ⌀\n({per} per side)"
+        txt = _gap_text(un, d.clearance, interferes, "the pin hits the wall", "line-to-line:\nzero clearance")
         tip = (min(xh, xp), zdim) if d.gap_side < 0 else (max(xh, xp), zdim)
         call = (tip, txt, S.INTERFERENCE if interferes else S.TEXT, True, "gap-text")
         (left_calls if d.gap_side < 0 else right_calls).append(call)

@@ -979,6 +979,14 @@ def _finish(res: SceneResult, b: _Built, ex: _Ex, title: str, readouts: list[str
     )
 
 
+def _exaggeration(value, auto) -> float:
+    """The exaggeration asked for, or ``auto()``; a positive finite number."""
+    k = float(value) if value is not None else auto()
+    if not (k > 0 and math.isfinite(k)):
+        raise ValueError(f"exaggeration must be a positive number, got {value!r}")
+    return k
+
+
 def build_mate_scene(res: SceneResult, mate_index: int, states: dict[str, FeatureState] | None = None,
                      exaggeration: float | None = None) -> Scene3D:
     """The hole of mate ``mate_index`` with its part, zone, actual axis, surface and boundaries,
@@ -994,9 +1002,7 @@ def build_mate_scene(res: SceneResult, mate_index: int, states: dict[str, Featur
     hs = states.get(hole.id) or default_state(hole, 0.0)
     ps = states.get(pin.id) or default_state(pin, 180.0)
     worst = hs == default_state(hole, 0.0) and ps == default_state(pin, 180.0)
-    k = float(exaggeration) if exaggeration is not None else auto_exaggeration(res, mate_index=mate_index)
-    if not (k > 0 and math.isfinite(k)):
-        raise ValueError(f"exaggeration must be a positive number, got {exaggeration!r}")
+    k = _exaggeration(exaggeration, lambda: auto_exaggeration(res, mate_index=mate_index))
     centre = hole.at
     ex = _Ex(k, centre, hole.mmc / 2.0)
     b = _Built()
@@ -1130,9 +1136,7 @@ def build_feature_scene(res: SceneResult, feature_id: str, state: FeatureState |
     f = sc.feature(feature_id)
     st = state or default_state(f, 0.0)
     worst = st == default_state(f, 0.0)
-    k = float(exaggeration) if exaggeration is not None else auto_exaggeration(res, feature_id=feature_id)
-    if not (k > 0 and math.isfinite(k)):
-        raise ValueError(f"exaggeration must be a positive number, got {exaggeration!r}")
+    k = _exaggeration(exaggeration, lambda: auto_exaggeration(res, feature_id=feature_id))
     centre = f.at
     ex = _Ex(k, centre, f.mmc / 2.0)
     b = _Built()
