@@ -61,17 +61,21 @@ def scene_with(kind=Kind.HOLE, limits=(8.0, 8.03), length=12.0, char=Characteris
 # ---------------------------------------------------------------- independent computations
 
 
-def brute_inscribed(xy, near):
-    """Largest empty circle through three points, centre within 1 of ``near``: brute force."""
+def _circumcentres(xy):
+    """Centres of the circles through every triple of points (collinear triples left out)."""
     idx = np.array(list(itertools.combinations(range(len(xy)), 3)))
     a, b, c = xy[idx[:, 0]], xy[idx[:, 1]], xy[idx[:, 2]]
     d = 2 * ((b - a)[:, 0] * (c - a)[:, 1] - (b - a)[:, 1] * (c - a)[:, 0])
     ok = np.abs(d) > 1e-15
     a, b, c, d = a[ok], b[ok], c[ok], d[ok]
     sa, sb, sc = (a * a).sum(1), (b * b).sum(1), (c * c).sum(1)
-    ux = (sa * (b[:, 1] - c[:, 1]) + sb * (c[:, 1] - a[:, 1]) + sc * (a[:, 1] - b[:, 1])) / d
-    uy = (sa * (c[:, 0] - b[:, 0]) + sb * (a[:, 0] - c[:, 0]) + sc * (b[:, 0] - a[:, 0])) / d
-    cen = np.c_[ux, uy]
+    return np.c_[(sa * (b[:, 1] - c[:, 1]) + sb * (c[:, 1] - a[:, 1]) + sc * (a[:, 1] - b[:, 1])) / d,
+                 (sa * (c[:, 0] - b[:, 0]) + sb * (a[:, 0] - c[:, 0]) + sc * (b[:, 0] - a[:, 0])) / d]
+
+
+def brute_inscribed(xy, near):
+    """Largest empty circle through three points, centre within 1 of ``near``: brute force."""
+    cen = _circumcentres(xy)
     dist = np.sqrt(((cen[:, None, :] - xy[None, :, :]) ** 2).sum(-1)).min(1)
     keep = np.hypot(*(cen - near).T) < 1.0
     return float(dist[keep].max())
@@ -85,14 +89,7 @@ def brute_circumscribed(xy):
         r = np.hypot(*(xy - c).T).max()
         if r <= np.hypot(*(xy[i] - c)) + 1e-12:
             best = min(best, r)
-    idx = np.array(list(itertools.combinations(range(len(xy)), 3)))
-    a, b, c = xy[idx[:, 0]], xy[idx[:, 1]], xy[idx[:, 2]]
-    d = 2 * ((b - a)[:, 0] * (c - a)[:, 1] - (b - a)[:, 1] * (c - a)[:, 0])
-    ok = np.abs(d) > 1e-15
-    a, b, c, d = a[ok], b[ok], c[ok], d[ok]
-    sa, sb, sc = (a * a).sum(1), (b * b).sum(1), (c * c).sum(1)
-    cen = np.c_[(sa * (b[:, 1] - c[:, 1]) + sb * (c[:, 1] - a[:, 1]) + sc * (a[:, 1] - b[:, 1])) / d,
-                (sa * (c[:, 0] - b[:, 0]) + sb * (a[:, 0] - c[:, 0]) + sc * (b[:, 0] - a[:, 0])) / d]
+    cen = _circumcentres(xy)
     far = np.sqrt(((cen[:, None, :] - xy[None, :, :]) ** 2).sum(-1)).max(1)
     return min(best, float(far.min()))
 

@@ -418,6 +418,17 @@ def through_view(res: SceneResult, subject, states=None, exaggeration: float | N
     return fig, data
 
 
+def _circle_caption(u, std, f, st, diameter: float, what: str, kind: str, generic: str, sign: str) -> str:
+    """Caption of the through-view's circle: its shapely diameter, and the boundary it stands for
+    (= at display precision, or ~ where the elliptical-section term shows)."""
+    name = _boundary_name(f, st, std)
+    eff = effective_size(f, st)
+    eq = "=" if u.fmt(diameter) == u.fmt(eff) else "≈"
+    tail = (f"{kind} {name} {u.fmt(eff)}" if name != generic
+            else f"size {sign} tolerance allowed = {u.fmt(eff)}")
+    return f"{what} ⌀{u.fmt(diameter)}\n{eq} {tail}"
+
+
 def _gap_text(u, clearance: float, interferes: bool, consequence: str, line_to_line: str) -> str:
     """The dimension text of a diametral clearance or overlap (true value, and per side)."""
     per, dia = _half(u, clearance / 2), u.fmt(abs(clearance))
@@ -493,12 +504,7 @@ def _draw_through(ax, res: SceneResult, d: ThroughData, fs: float):
         rc = ex.radial(hv.diameter / 2)
         c = ex.lateral(hv.centre)
         ax.add_patch(Circle(c, rc, fill=False, ec=S.VC, lw=2.0, zorder=5, gid="inscribed"))
-        name = _boundary_name(f, st, std)
-        eff = effective_size(f, st)
-        txt = f"opening's largest circle ⌀{u.fmt(hv.diameter)}"
-        eq = "=" if u.fmt(hv.diameter) == u.fmt(eff) else "≈"
-        txt += (f"\n{eq} hole {name} {u.fmt(eff)}" if name != "clear boundary"
-                else f"\n{eq} size − tolerance allowed = {u.fmt(eff)}")
+        txt = _circle_caption(u, std, f, st, hv.diameter, "opening's largest circle", "hole", "clear boundary", "−")
         a = math.radians(-35)
         calls.append(((c[0] + rc * math.cos(a), c[1] + rc * math.sin(a)), txt, S.VC, False, "inscribed-text"))
     if d.pin is not None:
@@ -517,12 +523,7 @@ def _draw_through(ax, res: SceneResult, d: ThroughData, fs: float):
         ax.add_patch(Circle(cp, rp, fill=False, ec=S.MATE_AXIS, lw=2.0, zorder=6, gid="pin-envelope"))
         legend.append(Line2D([], [], color=S.MATE_AXIS, lw=2.0, label="pin's enclosing circle (smallest around it)"))
         reach.append(rp)
-        name = _boundary_name(f, st, std)
-        eff = effective_size(f, st)
-        txt = f"pin's enclosing circle ⌀{u.fmt(pv.diameter)}"
-        eq = "=" if u.fmt(pv.diameter) == u.fmt(eff) else "≈"
-        txt += (f"\n{eq} pin {name} {u.fmt(eff)}" if name != "swept boundary"
-                else f"\n{eq} size + tolerance allowed = {u.fmt(eff)}")
+        txt = _circle_caption(u, std, f, st, pv.diameter, "pin's enclosing circle", "pin", "swept boundary", "+")
         a = math.radians(35)
         calls.append(((cp[0] + rp * math.cos(a), cp[1] + rp * math.sin(a)), txt, S.MATE_AXIS, False, "pin-text"))
     if d.hole is not None:

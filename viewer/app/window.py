@@ -33,6 +33,15 @@ def settings() -> QSettings:
     return QSettings("matezone", "matezone")
 
 
+def _top_aligned(widget: QWidget) -> QWidget:
+    """A tab page holding ``widget`` at the top, the free space below it."""
+    page = QWidget()
+    lay = QVBoxLayout(page)
+    lay.addWidget(widget)
+    lay.addStretch(1)
+    return page
+
+
 class ReportWorker(QObject):
     """Runs the report pipeline off the GUI thread: ``matezone report`` on the scene shown
     (written to a temporary file under its own name), with the what-if sizes. A separate
@@ -111,11 +120,7 @@ class MainWindow(QMainWindow):
         ll.addWidget(self.contents)
         self.tabs = QTabWidget()
         self.whatif = WhatIfPanel(m)
-        wi = QWidget()
-        wl = QVBoxLayout(wi)
-        wl.addWidget(self.whatif)
-        wl.addStretch(1)
-        self.tabs.addTab(wi, "What-if")
+        self.tabs.addTab(_top_aligned(self.whatif), "What-if")
         self.feature_form = FeatureForm(m)
         self.mate_form = MateForm(m)
         ed = QWidget()
@@ -128,11 +133,7 @@ class MainWindow(QMainWindow):
         scroll.setWidget(ed)
         self.tabs.addTab(scroll, "Edit feature")
         self.scene_form = SceneForm(m)
-        sw = QWidget()
-        sl = QVBoxLayout(sw)
-        sl.addWidget(self.scene_form)
-        sl.addStretch(1)
-        self.tabs.addTab(sw, "Scene")
+        self.tabs.addTab(_top_aligned(self.scene_form), "Scene")
         ll.addWidget(self.tabs, 1)
         self.messages = MessageBar(m)
         ll.addWidget(self.messages)
