@@ -95,6 +95,20 @@ def test_interfering_scene_says_interferes_in_words_and_colour(qtbot):
 # ---------------------------------------------------------------- what-if
 
 
+def _table_value(win, fid: str, quantity: str) -> str:
+    """The value the readout table SHOWS for ``quantity`` in the block of feature ``fid`` (read
+    from the widget's items, not from the table's record of what it meant to show)."""
+    t = win.readouts
+    inside = False
+    for r in range(t.rowCount()):
+        head = t.item(r, 0).text()
+        if head.endswith(" at the sizes set"):
+            inside = head.split(" ")[1] == fid
+        elif inside and head == quantity:
+            return t.item(r, 1).text()
+    raise KeyError((fid, quantity))
+
+
 def test_size_control_readouts_equal_geom_at_that_size(qtbot):
     from geom.boundaries import FeatureState, bonus, effective_size, tolerance_allowed, virtual_condition
 
@@ -118,6 +132,10 @@ def test_size_control_readouts_equal_geom_at_that_size(qtbot):
         # the VC stays put while the bonus grows
         assert win.readouts.value("cap-bore", "virtual condition (MMC) (constant)") == u.fmt(virtual_condition(hole))
         assert win.readouts.value("cap-bore", "virtual condition (MMC) (constant)") == vc_before
+        # and the widget shows those texts (a move only re-sets the texts that changed)
+        assert _table_value(win, "cap-bore", "bonus at this size") == u.fmt(bonus(hole, size))
+        assert _table_value(win, "cap-bore", "tolerance allowed at this size") == u.fmt(tolerance_allowed(hole, size))
+        assert _table_value(win, "cap-bore", "virtual condition (MMC) (constant)") == vc_before
         bonus_seen.append(float(win.readouts.value("cap-bore", "bonus at this size")))
     assert bonus_seen == sorted(bonus_seen) and bonus_seen[0] > 0  # grows with departure from MMC
 

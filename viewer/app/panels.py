@@ -926,6 +926,9 @@ class ReadoutTable(QTableWidget):
         h.setSectionResizeMode(1, QHeaderView.ResizeToContents)
         h.setSectionResizeMode(2, QHeaderView.Stretch)
         self.values: dict[tuple[str, str], str] = {}  # (feature id, quantity) -> value shown
+        self._queued: list = []  # rows of the refresh under way: (cells, (bold, bg, fg), tip)
+        self._looks: list = []  # (bold, bg, fg) of the rows shown
+        self._fixed: tuple = (None, {})  # (result, (feature id, units, standard) -> its fixed rows)
         model.statesChanged.connect(self.refresh)
         model.focusChanged.connect(self.refresh)
         model.sceneChanged.connect(self.refresh)
@@ -933,22 +936,53 @@ class ReadoutTable(QTableWidget):
         self.refresh()
 
     def _add(self, cells, bold=False, bg: str | None = None, tip: str = "", fg: str | None = None) -> None:
-        r = self.rowCount()
-        self.insertRow(r)
-        for c, text in enumerate(cells):
-            it = QTableWidgetItem(text)
-            if bold:
-                f = it.font()
-                f.setBold(True)
-                it.setFont(f)
-            if bg:
-                it.setBackground(QBrush(QColor(bg)))
-            if fg and c < 2:
-                it.setForeground(QBrush(QColor(fg)))
-            if c == 1:
-                it.setTextAlignment(Qt.AlignRight | Qt.AlignVCenter)
-            it.setToolTip(tip or text)
-            self.setItem(r, c, it)
+        """Queue a row; :meth:`_apply` puts the queued rows on the table."""
+        self._queued.append((tuple(cells), (bold, bg, fg), tip))
+
+    def _apply(self) -> None:
+        """Show the queued rows. Same number of rows with the same looks as shown: only the
+        texts that differ are set (a what-if move changes a few numbers, and re-making every
+        item costs more than the rest of the readout); otherwise the rows are made anew."""
+        rows, self._queued = self._queued, []
+        looks = [look for _cells, look, _tip in rows]
+        if looks == self._looks and self.rowCount() == len(rows):
+            changed = [(r, c, text, tip) for r, (cells, _look, tip) in enumerate(rows)
+                       for c, text in enumerate(cells) if self.item(r, c).text() != text]
+            if not changed:
+                return
+            # the columns sized to their contents would be measured again after every single
+            # text (all rows each time): hold them while the texts change, measure once after
+            head = self.horizontalHeader()
+            modes = [head.sectionResizeMode(i) for i in range(self.columnCount())]
+            for i, mode in enumerate(modes):
+                if mode == QHeaderView.ResizeToContents:
+                    head.setSectionResizeMode(i, QHeaderView.Interactive)
+            for r, c, text, tip in changed:
+                it = self.item(r, c)
+                it.setText(text)
+                it.setToolTip(tip or text)
+            for i, mode in enumerate(modes):
+                if mode == QHeaderView.ResizeToContents:
+                    head.setSectionResizeMode(i, mode)
+            return
+        self.setRowCount(0)
+        self.setRowCount(len(rows))
+        for r, (cells, (bold, bg, fg), tip) in enumerate(rows):
+            for c, text in enumerate(cells):
+                it = QTableWidgetItem(text)
+                if bold:
+                    f = it.font()
+                    f.setBold(True)
+                    it.setFont(f)
+                if bg:
+                    it.setBackground(QBrush(QColor(bg)))
+                if fg and c < 2:
+                    it.setForeground(QBrush(QColor(fg)))
+                if c == 1:
+                    it.setTextAlignment(Qt.AlignRight | Qt.AlignVCenter)
+                it.setToolTip(tip or text)
+                self.setItem(r, c, it)
+        self._looks = looks
 
     def _row(self, fid: str, quantity: str, value: str, formula: str = "", **kw) -> None:
         self.values[(fid, quantity)] = value
@@ -1036,7 +1070,7 @@ class ReadoutTable(QTableWidget):
         res, sc = m.result, m.scene
         u, st = sc.units, sc.standard
         self.setUpdatesEnabled(False)
-        self.setRowCount(0)
+        self._queued = []
         self.values = {}
         fid = m.focus_inspection()
         if fid is not None:
@@ -1044,9 +1078,11 @@ class ReadoutTable(QTableWidget):
             if insp is not None:
                 self.inspection_rows(insp)
                 self.setWordWrap(True)
+                self._apply()
                 self.resizeRowsToContents()
             else:
                 self._add((f"inspection of {fid}", "", "no result yet: load measured points"), bold=True, bg="#e3f2fd")
+                self._apply()
             self.setUpdatesEnabled(True)
             return
         self.setWordWrap(False)
@@ -1058,7 +1094,7 @@ class ReadoutTable(QTableWidget):
                 self._add((row.quantity, row.value, row.formula), bg="#fff8e1" if row.constant else None,
                           tip="Does not change with the produced size" if row.constant else "")
             self._add((f"{fid}: limits and worst-case boundaries", "", ""), bold=True, bg="#eceff1")
-            for q, v, fml in feature_rows(r, u, st):
+            for q, v, fml in self._fixed_rows(res, fid, u, st):
                 self.values[(fid, q)] = v
                 self._add((q, ui_text(v), ui_text(fml)))
             for n in r.notes:
@@ -1083,7 +1119,19 @@ class ReadoutTable(QTableWidget):
             if fr.position_tolerance_unprojected is not None:
                 self._add(("without a projected zone", u.fmt(fr.position_tolerance_unprojected.value),
                            fr.position_tolerance_unprojected.formula(u, st)))
+        self._apply()
         self.setUpdatesEnabled(True)
+
+    def _fixed_rows(self, res, fid: str, u, st) -> list:
+        """geom's rows for the feature's limits and boundaries: they depend on the analysed
+        scene only (not on the what-if state), so they are formatted once per result."""
+        key = (fid, u, st)
+        if self._fixed[0] is not res:
+            self._fixed = (res, {})
+        rows = self._fixed[1].get(key)
+        if rows is None:
+            rows = self._fixed[1][key] = list(feature_rows(res.features[fid], u, st))
+        return rows
 
     def value(self, fid: str, quantity: str) -> str:
         return self.values[(fid, quantity)]
