@@ -1020,23 +1020,52 @@ def _tolerance_max(f: Feature) -> float:
     return max(tolerance_allowed(f, f.mmc), tolerance_allowed(f, f.lmc))
 
 
+def _reach(f: Feature, size: float) -> float:
+    """Twice the largest distance of the drawn axis from the zone axis within the feature, at a
+    produced size: the tolerance allowed; with a projected zone P the axis crosses the zone and
+    runs on into the part over its length L with the same lean, reaching t (1/2 + L/P) from the
+    zone axis (geom's projected boundary MMC -/+ t (1 + 2L/P) is the same reach)."""
+    if f.tolerance is None:
+        return 0.0
+    t = tolerance_allowed(f, size)
+    P = f.tolerance.projected
+    return t * (1.0 + 2.0 * f.length / P) if P else t
+
+
+def _lean(f: Feature) -> float:
+    """The largest slope (tan of the angle to the normal to A) of the drawn axis over the
+    states: tilted across its zone (T/L), across a projected zone (T/P), or bowed by
+    straightness (4T/L at the ends of the arc, as drawn)."""
+    if f.tolerance is None:
+        return 0.0
+    t = max(tolerance_allowed(f, f.mmc), tolerance_allowed(f, f.lmc))
+    if f.tolerance.characteristic is Characteristic.STRAIGHTNESS:
+        return 4.0 * t / f.length
+    return t / (f.tolerance.projected or f.length)
+
+
 def _clearance_span(hole: Feature, pin: Feature) -> tuple[float, float]:
     """(lo, hi) bounds of the local diametral clearance 2 (R - dist) between the pin's surface
     and the hole's over every state the what-if controls reach (sizes within limits, any share
-    of the tolerance, any tilt direction). Each axis stays within its zone, at most T/2 from the
-    common zone axis, so at sizes D (hole) and d (pin) the local clearance lies within
-    D - d -/+ (T_hole(D) + T_pin(d)); T is linear in the size, so the extremes are at the
-    limits: lo = min(D - T_hole(D)) - max(d + T_pin(d)) (the inner and outer boundaries: VC - VC
-    at MMC, the worst case), hi = max(D + T_hole(D)) - min(d - T_pin(d)). The colour scale
-    spans this, so colours mean the same clearance as the sizes are swept, the scale does not
-    jump under the user's eyes, and it shows red only where interference can happen. A
-    projected zone lets the axis lean further inside the part: :func:`_mate_surface` widens
-    the scale if a state's values fall outside."""
-    def t(f: Feature, size: float) -> float:
-        return tolerance_allowed(f, size) if f.tolerance is not None else 0.0
+    of the tolerance, any tilt direction). Each axis stays within reach r(size) of the common
+    zone axis (:func:`_reach`: the tolerance allowed, more with a projected zone), so at sizes D
+    (hole) and d (pin) the local clearance lies within D - d -/+ (r_hole(D) + r_pin(d)), plus a
+    second-order term from the lean of the surfaces: a level section of a pin leaning by angle
+    a is d sec(a) across, and the hole's clearance is taken square to its own leaning axis
+    (D cos(b)). Reach is linear in the size, so the extremes are at the limits:
+    lo = min(D - r_hole(D)) - max(d + r_pin(d)) - d_max (sec a - 1) (without a lean and a
+    projected zone: VC - VC at MMC, geom's worst case), hi = max(D + r_hole(D)) - min(d -
+    r_pin(d)) + D_max (1 - cos b). The colour scale spans this, so colours mean the same
+    clearance as the sizes are swept, the scale does not jump under the user's eyes, and it
+    shows red only where interference can happen (or within the lean term of it)."""
+    def r(f: Feature, size: float) -> float:
+        return _reach(f, size)
 
-    lo = min(D - t(hole, D) for D in hole.limits) - max(d + t(pin, d) for d in pin.limits)
-    hi = max(D + t(hole, D) for D in hole.limits) - min(d - t(pin, d) for d in pin.limits)
+    lean_pin, lean_hole = math.atan(_lean(pin)), math.atan(_lean(hole))
+    lo = min(D - r(hole, D) for D in hole.limits) - max(d + r(pin, d) for d in pin.limits)
+    hi = max(D + r(hole, D) for D in hole.limits) - min(d - r(pin, d) for d in pin.limits)
+    lo -= max(pin.limits) * (1.0 / math.cos(lean_pin) - 1.0)
+    hi += max(hole.limits) * (1.0 - math.cos(lean_hole))
     return lo, hi
 
 
@@ -1172,8 +1201,12 @@ def build_mate_scene(res: SceneResult, mate_index: int, states: dict[str, Featur
 
     cmin, c_tight, bar = _mate_surface(b, hg, pin, pg, ex, u, hs.size / 2.0, S.TEXT,
                                        span=_clearance_span(hole, pin))
-    c_formula = clearance_at(hole, pin, hs, ps)
-    assembles = c_formula >= -FIT_SLACK
+    mr = res.mates[mate_index]
+    if worst:  # geom's worst case, as the readout and `analyze` give it (a projected hole included)
+        c_formula, assembles = mr.clearance_min, mr.assembles
+    else:
+        c_formula = clearance_at(hole, pin, hs, ps)
+        assembles = c_formula >= -FIT_SLACK
     verdict = mate_verdict(c_formula, assembles, u)
     if not worst:
         verdict = "what-if: " + verdict.replace(" in the worst case", "")
@@ -1185,7 +1218,6 @@ def build_mate_scene(res: SceneResult, mate_index: int, states: dict[str, Featur
 
     lines = _feature_lines(res, hole, hs, "hole")
     lines += _feature_lines(res, pin, ps, "pin")
-    mr = res.mates[mate_index]
     if worst:
         lines.append(mate_formula(mr, u, std) + f" {u.value}")
     else:
@@ -1782,7 +1814,10 @@ class _CutPlan:
 
     def _take(self, v: np.ndarray) -> np.ndarray:
         w = self.t.reshape((-1,) + (1,) * (v.ndim - 1))
-        return np.concatenate([v[self.old], v[self.a] + w * (v[self.b] - v[self.a])]).astype(v.dtype, copy=False)
+        made = v[self.a] + w * (v[self.b] - v[self.a])
+        if np.issubdtype(v.dtype, np.integer):
+            made = np.rint(made)  # as VTK rounds interpolated integers
+        return np.concatenate([v[self.old], made]).astype(v.dtype, copy=False)
 
     def apply(self, mesh: pv.PolyData) -> pv.PolyData:
         n_out = len(self.old) + len(self.a)
@@ -1820,7 +1855,8 @@ _PLANS_SIZE = 64
 
 def _geometry_key(mesh: pv.PolyData) -> tuple:
     """The bytes of a mesh's points and cells: equal keys, equal geometry."""
-    parts = [vtk_to_numpy(mesh.GetPoints().GetData()).tobytes() if mesh.GetPoints() is not None else b""]
+    pts = vtk_to_numpy(mesh.GetPoints().GetData()) if mesh.GetPoints() is not None else np.empty((0, 3))
+    parts = [pts.dtype.str, pts.shape, pts.tobytes()]
     for cells in (mesh.GetPolys(), mesh.GetLines(), mesh.GetVerts()):
         off, conn = _cells_of(cells)
         parts += [off.tobytes(), conn.tobytes()]
@@ -1829,7 +1865,11 @@ def _geometry_key(mesh: pv.PolyData) -> tuple:
 
 def _planned(kind: str, mesh: pv.PolyData, o: np.ndarray, n: np.ndarray, make) -> pv.PolyData:
     """``make()``'s cut of ``mesh``, or the remembered plan for a mesh of the same geometry
-    cut by the same plane, applied to this mesh's point data."""
+    cut by the same plane, applied to this mesh's point data. Triangle strips (none of the
+    builders makes them) are split into triangles first."""
+    if mesh.GetNumberOfStrips():
+        mesh = mesh.triangulate()
+        make = {"clip": lambda: _clip_plan(mesh, o, n), "section": lambda: _section_plan(mesh, o, n)}[kind]
     key = (kind, np.asarray(o, dtype=float).tobytes(), np.asarray(n, dtype=float).tobytes(), _geometry_key(mesh))
     plan = _PLANS.get(key)
     if plan is None:
