@@ -511,6 +511,12 @@ def _cage(centre: tuple[float, float], radius: float, z0: float, z1: float, n_ri
     return _mesh(pts, lines=_cell_array(offsets, conn))
 
 
+def _segments(ends: np.ndarray) -> pv.PolyData:
+    """Separate straight segments, ``ends`` (k, 2, 3): one line cell each."""
+    k = len(ends)
+    return _mesh(ends.reshape(-1, 3), lines=_cell_array(2 * np.arange(k + 1), np.arange(2 * k)))
+
+
 def _polyline(points: np.ndarray) -> pv.PolyData:
     """One line through the points (shared)."""
     n = len(points)
@@ -972,17 +978,20 @@ def _mate_surface(b: _Built, hole_g: dict, pin: Feature, pin_g: dict, ex: _Ex, u
     hole_r_draw = hole_g["r_draw_surface"]
     colour = S.INTERFERENCE if interferes else S.TIGHT
     spot_pts = [_ring_point(axis_draw, frame_draw, pin_g["r_draw"], zi, j, N_FINE) for zi, j in spots]
+    ends = []
     for p in spot_pts:
-        b.add("clearance", "tightest spot", _points(p[None]),
-              dict(color=colour, point_size=16, render_points_as_spheres=True, lighting=False))
-        # outward direction on A at that spot, label a little outside the hole surface
+        # outward direction on A at that spot: the gap runs across to the hole surface
         centre_d = ex.pts(_axis_at(hole_g["axis_true_line"], np.array([p[2]])))[0]
         out = p - centre_d
         out[2] = 0.0
         nrm = np.linalg.norm(out)
         out = out / nrm if nrm > 0 else np.array([1.0, 0, 0])
-        q = centre_d + out * hole_r_draw
-        b.add("clearance", "gap at tightest spot", _polyline(np.array([p, q])), _line(colour, 3.0))
+        ends.append((p, centre_d + out * hole_r_draw))
+    # one mesh for the spots and one for the gaps (one or two of each): fewer actors, and the
+    # same ones whether the tightest fit is reached at one end or at both
+    b.add("clearance", "tightest spot", _points(np.array(spot_pts)),
+          dict(color=colour, point_size=16, render_points_as_spheres=True, lighting=False))
+    b.add("clearance", "gap at tightest spot", _segments(np.array(ends)), _line(colour, 3.0))
     txt = ("interference " if interferes else "tightest ") + units.fmt(c_tight, signed=True) + f" {units.value}"
     txt += f" ({abs(gmin):.{units.decimals + 1}f} a side)"
     cx = ex.c
