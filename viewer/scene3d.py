@@ -1764,7 +1764,6 @@ class _Cutter:
     VTK's clip and cut filters do, when a :class:`_CutPlan` is applied)."""
 
     def __init__(self, mesh: pv.PolyData, o: np.ndarray, n: np.ndarray):
-        self.mesh = mesh
         self.P = np.asarray(mesh.points, dtype=float)
         self.s = (self.P - o) @ n
         self.new_a: list[np.ndarray] = []
@@ -1890,6 +1889,20 @@ def _planned(kind: str, mesh: pv.PolyData, o: np.ndarray, n: np.ndarray, make) -
     return plan.apply(mesh)
 
 
+def _split_by_plane(mesh: pv.PolyData, inside: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """``mesh``'s faces as triangles (:func:`_fan`), sorted by how many of their vertices are
+    ``inside``: (all three, exactly one, exactly two). A triangle with one in is turned so that
+    vertex is first; with two in, so that the one outside is last (turns keep orientation)."""
+    tris = _fan(*_cells_of(mesh.GetPolys()), first=2)
+    ins = inside[tris]
+    k = ins.sum(axis=1)
+    roll = np.arange(3)
+    t1, t2 = tris[k == 1], tris[k == 2]
+    t1 = np.take_along_axis(t1, (np.argmax(ins[k == 1], axis=1)[:, None] + roll) % 3, axis=1)
+    t2 = np.take_along_axis(t2, (np.argmin(ins[k == 2], axis=1)[:, None] + 1 + roll) % 3, axis=1)
+    return tris[k == 3], t1, t2
+
+
 def _clip_behind(mesh: pv.PolyData, o: np.ndarray, n: np.ndarray) -> pv.PolyData:
     """The part of ``mesh`` on the side of the plane (o, n) that n points to, faces and lines
     cut exactly at the plane (point data interpolated), as triangles, segments and vertices:
@@ -1902,18 +1915,11 @@ def _clip_behind(mesh: pv.PolyData, o: np.ndarray, n: np.ndarray) -> pv.PolyData
 def _clip_plan(mesh: pv.PolyData, o: np.ndarray, n: np.ndarray) -> _CutPlan:
     c = _Cutter(mesh, o, n)
     inside = c.s >= 0.0
-    tris = _fan(*_cells_of(mesh.GetPolys()), first=2)
-    ins = inside[tris]
-    k = ins.sum(axis=1)
-    keep = [tris[k == 3]]
-    roll = np.arange(3)
-    if (k == 1).any():  # one vertex in: the triangle (v0, v0->v1, v0->v2), v0 the one inside
-        t1 = tris[k == 1]
-        t1 = np.take_along_axis(t1, (np.argmax(ins[k == 1], axis=1)[:, None] + roll) % 3, axis=1)
+    whole, t1, t2 = _split_by_plane(mesh, inside)
+    keep = [whole]
+    if len(t1):  # one vertex in: the triangle (v0, v0->v1, v0->v2), v0 the one inside
         keep.append(np.stack([t1[:, 0], c.edge(t1[:, 0], t1[:, 1]), c.edge(t1[:, 0], t1[:, 2])], axis=1))
-    if (k == 2).any():  # two in: the quad (v0, v1, v1->v2, v0->v2), v2 the one outside
-        t2 = tris[k == 2]
-        t2 = np.take_along_axis(t2, (np.argmin(ins[k == 2], axis=1)[:, None] + 1 + roll) % 3, axis=1)
+    if len(t2):  # two in: the quad (v0, v1, v1->v2, v0->v2), v2 the one outside
         e12, e02 = c.edge(t2[:, 1], t2[:, 2]), c.edge(t2[:, 0], t2[:, 2])
         keep += [np.stack([t2[:, 0], t2[:, 1], e12], axis=1), np.stack([t2[:, 0], e12, e02], axis=1)]
     segs = _fan(*_cells_of(mesh.GetLines()), first=1)
@@ -1939,19 +1945,11 @@ def _plane_section(mesh: pv.PolyData, origin: np.ndarray, n: np.ndarray) -> pv.P
 
 def _section_plan(mesh: pv.PolyData, origin: np.ndarray, n: np.ndarray) -> _CutPlan:
     c = _Cutter(mesh, origin, n)
-    inside = c.s >= 0.0
-    tris = _fan(*_cells_of(mesh.GetPolys()), first=2)
-    ins = inside[tris]
-    k = ins.sum(axis=1)
-    roll = np.arange(3)
-    segs = []
-    if (k == 1).any():
-        t1 = tris[k == 1]
-        t1 = np.take_along_axis(t1, (np.argmax(ins[k == 1], axis=1)[:, None] + roll) % 3, axis=1)
+    _whole, t1, t2 = _split_by_plane(mesh, c.s >= 0.0)
+    segs = []  # the two crossed edges of each triangle the plane cuts
+    if len(t1):
         segs.append((t1[:, 0], t1[:, 1], t1[:, 0], t1[:, 2]))
-    if (k == 2).any():
-        t2 = tris[k == 2]
-        t2 = np.take_along_axis(t2, (np.argmin(ins[k == 2], axis=1)[:, None] + 1 + roll) % 3, axis=1)
+    if len(t2):
         segs.append((t2[:, 1], t2[:, 2], t2[:, 0], t2[:, 2]))
     out = []
     for a0, b0, a1, b1 in segs:
