@@ -48,6 +48,7 @@ _ASME = {
     "t_pos": ("T", "position tolerance"),
     "t_lmc": ("t@LMC", "tolerance at LMC"),
     "rfs": ("RFS", "regardless of feature size"),
+    "t_allowed": ("tolerance allowed", "tolerance allowed at the produced size"),
 }
 _ISO = {
     "mmc": ("MMS", "maximum material size"),
@@ -63,6 +64,7 @@ _ISO = {
     "t_pos": ("T", "position tolerance"),
     "t_lmc": ("t@LMS", "tolerance at LMS"),
     "rfs": ("indep.", "no modifier: independency (ISO 8015)"),
+    "t_allowed": ("tolerance allowed", "tolerance allowed at the produced size (stated + increase)"),
 }
 
 
@@ -121,6 +123,9 @@ class FeatureResult:
     tilt_max_deg: float | None
     envelope: bool
     notes: tuple[str, ...]
+    # hole with a projected zone: its IB/OB apply within the projected height; this is the
+    # boundary over the hole's own length, the one a mating pin meets
+    in_hole_boundary: "Derived | None" = None
 
 
 def _none(key: str, note: str) -> Derived:
@@ -185,17 +190,34 @@ def analyse_feature(f: Feature, standard: Standard = Standard.ASME) -> FeatureRe
     mm_key, lm_key = ("inner", "outer") if f.kind is Kind.HOLE else ("outer", "inner")
     mm_val = inner_v if f.kind is Kind.HOLE else outer_v
     lm_val = outer_v if f.kind is Kind.HOLE else inner_v
-    if mm_val is None:  # no modifier and no envelope: independency
+    iso = standard is Standard.ISO
+    if mm_val is None and lm_val is None:  # no modifier and no envelope: independency
         why = "no modifier and no envelope: under independency the size does not limit form"
         mm_side, lm_side = _none(mm_key, why), _none(lm_key, why)
-        notes.append("no modifier and no envelope (independency, ISO 8015): local sizes do not "
+        notes.append("no modifier and no envelope (independency): local sizes do not "
                      "limit form, so no worst-case boundary exists; add (E) or a modifier to bound it")
     else:
-        if env and tol.characteristic is Characteristic.STRAIGHTNESS:
+        if mm_val is None:
+            mm_side = _none(mm_key, f"independency (ISO 8015): on the {term('mmc', standard)[0]} side form "
+                                    "is not limited by the size; only (M) or (E) bounds it")
+        elif env and tol.characteristic is Characteristic.STRAIGHTNESS:
             mm_side = Derived(mm_key, mm_val, "{mmc} (envelope: tighter than the straightness VC)", "{}", (f.mmc,))
         else:
             mm_side = Derived(mm_key, mm_val, "{mmc} " + s + " {t_mmc}", "{} " + s + " {}", (f.mmc, tm))
-        lm_side = Derived(lm_key, lm_val, "{lmc} " + o + " {t_lmc}", "{} " + o + " {}", (f.lmc, tl))
+        if lm_val is None:
+            lm_side = _none(lm_key, f"independency (ISO 8015): on the {term('lmc', standard)[0]} side form "
+                                    "is not limited by the size; only (L) bounds it")
+        else:
+            lm_side = Derived(lm_key, lm_val, "{lmc} " + o + " {t_lmc}", "{} " + o + " {}", (f.lmc, tl))
+        if iso and (mm_val is None or lm_val is None):
+            notes.append("independency (ISO 8015): a side that neither a modifier nor the envelope bounds has "
+                         "no worst-case boundary (form is not limited by the size there); none is computed "
+                         "on a perfect-form assumption")
+    if iso and rc.value is not None:
+        side_ok = (lm_val is not None) if tol.material is Material.MMC else (mm_val is not None)
+        if not side_ok:
+            rc = _none("rc", "independency (ISO 8015): form is not limited on that side, so no resultant "
+                             "boundary exists")
     inner, outer = (mm_side, lm_side) if f.kind is Kind.HOLE else (lm_side, mm_side)
 
     if tol.zone is Zone.WIDTH:
@@ -216,7 +238,10 @@ def analyse_feature(f: Feature, standard: Standard = Standard.ASME) -> FeatureRe
         vcn = term(vc.key, standard)[0]
         notes.append(f"zero tolerance at {mc}: {vcn} = {mc}; all tolerance comes from the departure from {mc}")
     tilt = B.tilt_angle_deg(f, max(tm, tl))
-    return FeatureResult(f, mmc, lmc, bonus, t_mmc, t_lmc, vc, rc, inner, outer, tilt, env, tuple(notes))
+    in_hole = None
+    if tol.projected and f.kind is Kind.HOLE and inner.value is not None:
+        in_hole = projected_hole_boundary(f)
+    return FeatureResult(f, mmc, lmc, bonus, t_mmc, t_lmc, vc, rc, inner, outer, tilt, env, tuple(notes), in_hole)
 
 
 # ---------------------------------------------------------------- mates
@@ -239,14 +264,11 @@ class MateResult:
         return mate_verdict(self.clearance_min, self.assembles)
 
 
-FIT_SLACK = 1e-9  # a line-to-line fit (zero clearance) still assembles
-
-
 def mate_verdict(clearance: float, assembles: bool, units: Units | None = None) -> str:
     fmt = (lambda v: units.fmt(v) + " " + units.value) if units else (lambda v: f"{v:.6g}")
     if not assembles:
         return f"INTERFERES by {fmt(-clearance)} in the worst case: the pin may not enter the hole"
-    if abs(clearance) <= FIT_SLACK:
+    if line_to_line(clearance):
         return "ASSEMBLES line-to-line in the worst case (zero clearance, no margin)"
     return f"ASSEMBLES in the worst case with {fmt(clearance)} clearance"
 
@@ -267,21 +289,59 @@ def _mate_side(res: FeatureResult, which: str) -> tuple[Derived, str | None]:
                      f"the fit assumes perfect form")
 
 
-def _projected_hole_side(res: FeatureResult, base: Derived) -> tuple[Derived, str]:
-    """A hole whose tolerance is projected: the pin engages the hole's own length L, where the
-    axis may wander beyond the projected zone (ASME Y14.5-2009 §7.4.1 and the fastener appendix,
-    from memory): position MMC - t(1 + 2L/P); orientation (floating zone) MMC - t L/P."""
-    f = res.feature
+def projected_hole_boundary(f: Feature) -> Derived:
+    """Inner boundary over the hole's own length L of a hole whose tolerance is projected: there
+    the axis may wander beyond the projected zone (ASME Y14.5-2009 §7.4.1 and the fastener
+    appendix, from memory): position MMC - t(1 + 2L/P); orientation (floating zone) MMC - t L/P."""
     tol = f.tolerance
     t, L, P = B.tolerance_at_mmc(f), f.length, tol.projected
     if tol.characteristic is Characteristic.POSITION:
         v = f.mmc - t * (1.0 + 2.0 * L / P)
-        d = Derived("inner", v, "{mmc} - {t_mmc}(1 + 2L/P)", "{} - {}*(1 + 2*{}/{})", (f.mmc, t, L, P))
-    else:
-        v = f.mmc - t * L / P
-        d = Derived("inner", v, "{mmc} - {t_mmc} L/P", "{} - {}*{}/{}", (f.mmc, t, L, P))
+        return Derived("inner", v, "{mmc} - {t_mmc}(1 + 2L/P)", "{} - {}*(1 + 2*{}/{})", (f.mmc, t, L, P),
+                       note="over the hole's own length")
+    v = f.mmc - t * L / P
+    return Derived("inner", v, "{mmc} - {t_mmc} L/P", "{} - {}*{}/{}", (f.mmc, t, L, P),
+                   note="over the hole's own length")
+
+
+def _projected_hole_side(res: FeatureResult, base: Derived) -> tuple[Derived, str]:
+    """A hole whose tolerance is projected: the pin engages the hole's own length L."""
+    f = res.feature
+    tol = f.tolerance
+    d = res.in_hole_boundary or projected_hole_boundary(f)
     return d, (f"'{f.id}' has a projected zone ({tol.projected:g}): inside the part the axis may leave "
-               f"that zone; the pin engages the hole's own length {L:g}, so its boundary there is used")
+               f"that zone; the pin engages the hole's own length {f.length:g}, so its boundary there is used")
+
+
+FIT_SLACK = 1e-9  # a line-to-line fit (zero clearance) still assembles
+
+
+def fits(clearance: float) -> bool:
+    """The one fit predicate: a worst-case clearance of zero or more assembles (line-to-line
+    included, within ``FIT_SLACK``); a negative one is interference (common practice, no source).
+
+    >>> fits(0.0), fits(-1e-12), fits(-0.001)
+    (True, True, False)
+    """
+    return clearance >= -FIT_SLACK
+
+
+def line_to_line(clearance: float) -> bool:
+    return abs(clearance) <= FIT_SLACK
+
+
+def tolerance_allowed_derived(f: Feature, bonus: float, source: str = "") -> Derived:
+    """Tolerance allowed = stated tolerance + bonus (ISO: increase), as a :class:`Derived`,
+    the one place every front end takes this formula from.
+
+    >>> from geom.model import Feature, Kind, Tolerance, Characteristic, Material, Units
+    >>> t = Tolerance(Characteristic.POSITION, 0.002, material=Material.MMC, datums=("A", "B"))
+    >>> h = Feature("h", Kind.HOLE, (1.120, 1.124), 0.5, tolerance=t)
+    >>> tolerance_allowed_derived(h, 0.003).formula(Units.IN)
+    'tolerance allowed = t + bonus = 0.0020 + 0.0030 = 0.0050'
+    """
+    t = f.tolerance.value if f.tolerance is not None else 0.0
+    return Derived("t_allowed", t + bonus, "{t} + {bonus}", "{} + {}", (t, bonus), note=source)
 
 
 def analyse_mate(hole: FeatureResult, pin: FeatureResult) -> MateResult:
@@ -315,7 +375,7 @@ def analyse_mate(hole: FeatureResult, pin: FeatureResult) -> MateResult:
         clearance_min=cmin,
         clearance_min_size=hole.feature.mmc - pin.feature.mmc,
         clearance_max=hole.feature.lmc - pin.feature.lmc,
-        assembles=cmin >= -FIT_SLACK,
+        assembles=fits(cmin),
         assumptions=tuple(assumptions),
     )
 

@@ -119,8 +119,15 @@ def worst_case_boundaries(feature: Feature, standard: Standard = Standard.ASME):
 
     - no tolerance: only the envelope (Rule #1 / ISO (E)) bounds the MMC side, at MMC;
       nothing relates the LMC side to a datum;
-    - no modifier (RFS) and no envelope (ISO 8015 independency, or ``envelope = false``):
-      the size does not limit form (two-point sizes, ISO 14405-1), so neither side is bounded;
+    - ASME, straightness of the derived median line: Rule #1 does not apply, yet the local
+      sizes and the straightness zone bound both sides: OB = MMC + t, IB = LMC - t for a pin
+      (hole: IB = MMC - t, OB = LMC + t) for RFS as for a modifier (ASME Y14.5, derived
+      median line straightness, from memory);
+    - ASME, no modifier and ``envelope = false``: the size does not limit form, no boundary;
+    - ISO (ISO 8015 independency): a side is bounded only by what ISO itself states there:
+      the MMS side by the MMVS of (M) or by the envelope (E); the LMS side by the LMVS of (L).
+      Elsewhere the size does not limit form (two-point sizes, ISO 14405-1), so no boundary
+      is computed on a perfect-form assumption;
     - envelope together with straightness: the envelope at MMC is the tighter MMC-side boundary.
     """
     s = _sign(feature)
@@ -129,12 +136,18 @@ def worst_case_boundaries(feature: Feature, standard: Standard = Standard.ASME):
     if tol is None:
         mm_side = feature.mmc if env else None
         lm_side = None
-    elif tol.material is Material.RFS and not env:
-        mm_side = lm_side = None
     else:
         mm_side = feature.mmc + s * tolerance_at_mmc(feature)
         lm_side = feature.lmc - s * tolerance_at_lmc(feature)
-        if env and tol.characteristic is Characteristic.STRAIGHTNESS:
+        straight = tol.characteristic is Characteristic.STRAIGHTNESS
+        if standard is Standard.ISO:
+            if not (env or tol.material is Material.MMC):
+                mm_side = None
+            if tol.material is not Material.LMC:
+                lm_side = None
+        elif tol.material is Material.RFS and not env and not straight:
+            mm_side = lm_side = None
+        if env and straight and mm_side is not None:
             mm_side = feature.mmc
     if feature.kind is Kind.HOLE:
         return mm_side, lm_side

@@ -244,13 +244,17 @@ def axis_distances(P: np.ndarray, x, z0: float, jac: bool = False):
 
 
 def minimax_cylinder(P: np.ndarray, x0, z0: float, inscribed: bool, free=(True, True, True, True),
-                     max_iter: int = 200) -> tuple[np.ndarray, float]:
+                     max_iter: int = 200, offsets=None) -> tuple[np.ndarray, float]:
     """Largest cylinder holding no point (``inscribed``) or smallest holding all of them.
 
     ``x0 = (a, b, u, v)`` starts the search and gives the values of the parameters that are
     not ``free``. Returns (axis parameters, radius). The radius is the smallest (inscribed) or
     largest (circumscribed) distance of a point from the axis found, so it is exact for that
     axis; the axis is a local optimum reached from ``x0`` (start from a least-squares fit).
+
+    ``offsets`` (n,), if given, are subtracted from the distances: the circumscribed fit then
+    minimises max_i (d_i - offset_i) (each point with an allowance of its own), the inscribed
+    fit maximises min_i (d_i - offset_i); the value returned is that max (min).
 
     Method: sequential linear programming. At x, maximise r subject to
     d_i(x) + g_i . dx >= r (or minimise r subject to <=) inside a box trust region, on a working
@@ -262,24 +266,30 @@ def minimax_cylinder(P: np.ndarray, x0, z0: float, inscribed: bool, free=(True, 
     x = np.asarray(x0, float).copy()
     free = np.asarray(free, bool)
     sgn = 1.0 if inscribed else -1.0  # work on sgn * d: maximise its minimum
+    off = np.zeros(len(P)) if offsets is None else np.asarray(offsets, float)
+
+    def dist(xx, jac=False):
+        if jac:
+            d, g = axis_distances(P, xx, z0, jac=True)
+            return d - off, g
+        return axis_distances(P, xx, z0) - off
 
     def value(xx):
-        d = axis_distances(P, xx, z0)
-        return sgn * float((sgn * d).min())
+        return sgn * float((sgn * dist(xx)).min())
 
     if not free.any():
         return x, value(x)
     k = int(free.sum())
     zspan = float(np.ptp(P[:, 2])) or 1.0
-    d = axis_distances(P, x, z0)
-    spread = float(np.ptp(d)) or 1e-6 * (float(d.mean()) or 1.0)
+    d = dist(x)
+    spread = float(np.ptp(d)) or 1e-6 * (float(np.abs(d).mean()) or 1.0)
     unit = np.array([1.0, 1.0, 1.0 / zspan, 1.0 / zspan])[free]
     delta = 0.5 * spread
     tiny = 1e-15 * max(1.0, float(np.abs(P).max()))
     f = sgn * d
     fbest = float(f.min())
     for _ in range(max_iter):
-        d, g = axis_distances(P, x, z0, jac=True)
+        d, g = dist(x, jac=True)
         f = sgn * d
         G = sgn * g[:, free]
         fbest = float(f.min())
@@ -310,7 +320,7 @@ def minimax_cylinder(P: np.ndarray, x0, z0: float, inscribed: bool, free=(True, 
             break
         xn = x.copy()
         xn[free] += dx
-        fn = float((sgn * axis_distances(P, xn, z0)).min())
+        fn = float((sgn * dist(xn)).min())
         actual = fn - fbest
         if actual >= 0.1 * predicted:
             x = xn
@@ -320,7 +330,7 @@ def minimax_cylinder(P: np.ndarray, x0, z0: float, inscribed: bool, free=(True, 
             delta *= 0.25
         if delta < tiny:
             break
-    return x, sgn * float((sgn * axis_distances(P, x, z0)).min())
+    return x, value(x)
 
 
 def ls_cylinder(P: np.ndarray, x0, z0: float, iterations: int = 50) -> tuple[np.ndarray, float]:

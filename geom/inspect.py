@@ -49,11 +49,15 @@ from pathlib import Path
 import numpy as np
 
 from . import fitting as F
-from .analysis import analyse_feature, term
+from .analysis import analyse_feature, term, tolerance_allowed_derived
+from .conformance import (
+    Check, Outcome, PartVerdict, combine, decide, not_evaluated, part_verdict, readings_disagree, verdict_word,
+    with_detail,
+)
 from .boundaries import bonus_max as _bonus_max
 from .boundaries import virtual_condition
 from .model import (
-    Characteristic, Feature, Kind, Material, Scene, Standard, Units, Zone, envelope_applies,
+    Characteristic, Feature, Kind, Material, Scene, Standard, Units, Zone, datum_problem, envelope_applies,
 )
 from .pointsfile import PointCloud, read_points
 
@@ -106,19 +110,6 @@ class Envelope:
 
 
 @dataclass(frozen=True)
-class Check:
-    """One verdict: measured value(s) against a limit, with the ISO 14253-1 outcome."""
-
-    name: str
-    conforms: bool | None  # on the measured values alone (None: not evaluated)
-    outcome: str  # "conformance proven" | "nonconformance proven" | "not proven" | ...
-    detail: str  # e.g. "0.024 > 0.022"
-    values: tuple[float, ...] = ()
-    low: float | None = None
-    high: float | None = None
-
-
-@dataclass(frozen=True)
 class AxisReading:
     """How much zone the derived median line needs."""
 
@@ -127,6 +118,7 @@ class AxisReading:
     width_reading: float | None
     method: str  # what was measured and how
     line: np.ndarray  # (k, 3) points the reading was taken on
+    basis: str = "median line"  # "median line" (derived / extracted median line) or "feature axis"
 
 
 @dataclass(frozen=True)
@@ -178,9 +170,14 @@ class InspectionResult:
     explanation: tuple[str, ...]
     notes: tuple[str, ...] = ()
     warnings: tuple[str, ...] = field(default=())
-    # the same reading taken on the axis of the unrelated envelope (ASME's "feature axis"),
-    # shown beside the derived-median-line reading the verdict uses
+    # both axis readings: the axis of the unrelated envelope (ASME's "feature axis") and the
+    # derived / extracted median line; ``axis`` is the one that governs (``axis_governs`` says why)
     feature_axis: AxisReading | None = None
+    median_axis: AxisReading | None = None
+    other_axis_check: Check | None = None  # the reading that does not govern, judged the same way
+    axis_governs: str = ""
+    verdict: PartVerdict | None = None  # the one overall verdict of the feature
+    section_increases: tuple[float, ...] | None = None  # straightness at a modifier: per section
 
     @property
     def size_conforms(self) -> bool | None:
@@ -197,57 +194,6 @@ class InspectionResult:
     @property
     def axis_deviation(self) -> float | None:
         return None if self.axis is None else self.axis.deviation
-
-
-# ---------------------------------------------------------------- decisions
-
-
-def decide(name: str, values, low: float | None, high: float | None, U: float | None,
-           fmt=lambda v: f"{v:g}") -> Check:
-    """ISO 14253-1 decision rule (from memory): conformance is proven when every value lies in
-    the specification zone shrunk by U on each side, nonconformance when one lies outside it
-    grown by U; otherwise neither is proven. Without U the measured values decide alone."""
-    vals = tuple(float(v) for v in values)
-    lo = -math.inf if low is None else low
-    hi = math.inf if high is None else high
-    u = U or 0.0
-    inside = all(lo - SLACK <= v <= hi + SLACK for v in vals)
-    if U is None:
-        outcome = "conforms (no U given)" if inside else "does not conform (no U given)"
-    elif all(lo + u - SLACK <= v <= hi - u + SLACK for v in vals):
-        outcome = "conformance proven"
-    elif any(v < lo - u - SLACK or v > hi + u + SLACK for v in vals):
-        outcome = "nonconformance proven"
-    else:
-        outcome = "not proven either way (within U of a limit)"
-    shown = " .. ".join(fmt(v) for v in vals)
-    if low is not None and high is not None:
-        rel = "within" if inside else "outside"
-        detail = f"{shown} {rel} {fmt(low)} .. {fmt(high)}"
-    elif high is not None:
-        detail = f"{shown} {'<=' if inside else '>'} {fmt(high)}"
-    else:
-        detail = f"{shown} {'>=' if inside else '<'} {fmt(low)}"
-    return Check(name, inside, outcome, detail, vals, low, high)
-
-
-def _not_evaluated(name: str, why: str) -> Check:
-    return Check(name, None, "not evaluated", why)
-
-
-def _combine(name: str, checks: list[Check]) -> Check:
-    done = [c for c in checks if c.conforms is not None]
-    if not done:
-        return _not_evaluated(name, "; ".join(c.detail for c in checks))
-    ok = all(c.conforms for c in done)
-    outs = [c.outcome for c in done]
-    if any(o.startswith("nonconformance") or o.startswith("does not") for o in outs):
-        outcome = next(o for o in outs if o.startswith("nonconformance") or o.startswith("does not"))
-    elif all(o.startswith("conformance") or o.startswith("conforms") for o in outs):
-        outcome = outs[0]
-    else:
-        outcome = next(o for o in outs if o.startswith("not proven"))
-    return Check(name, ok, outcome, "; ".join(c.detail for c in checks))
 
 
 # ---------------------------------------------------------------- sections
@@ -338,6 +284,17 @@ def _axis_reading(feature: Feature, centres: np.ndarray, line_fit) -> AxisReadin
     return AxisReading(dev, dia, width, how, np.asarray(pts, float))
 
 
+def _axis_frame(x, z0: float) -> tuple[np.ndarray, np.ndarray]:
+    """Rotation R (rows: e1, e2, axis direction) and origin of the frame of the axis
+    ``x = (a, b, u, v)``: datum-frame points P have axis-frame coordinates (P - p0) @ R.T."""
+    d = F.axis_direction_unit(x)
+    e1 = np.array([1.0, 0.0, 0.0]) - d[0] * d
+    e1 /= np.linalg.norm(e1)
+    e2 = np.cross(d, e1)
+    p0 = np.array([float(x[0]), float(x[1]), z0])
+    return np.vstack([e1, e2, d]), p0
+
+
 def _line_through(pts: np.ndarray, z0: float) -> np.ndarray:
     """Least-squares line x(z), y(z) through points: axis parameters (a, b, u, v) at z0."""
     z = pts[:, 2] - z0
@@ -386,7 +343,7 @@ def _related(feature: Feature, P: np.ndarray, x_start, z0: float, inscribed: boo
             free = (True, True, False, False)
             cons = "normal to A, location free"
     x, r = F.minimax_cylinder(P, x0, z0, inscribed=inscribed, free=free)
-    return _envelope(f"related {what}", x, z0, r, cons)
+    return _envelope(what, x, z0, r, cons)
 
 
 # ---------------------------------------------------------------- main entry
@@ -434,6 +391,9 @@ def inspect_feature(scene: Scene, feature_id: str, points=None, bonus_basis: str
         hint = f" (did you mean {near[0]!r}?)" if near else ""
         raise InspectError(f"{scene.source or 'scene'}: no feature {feature_id!r}{hint}; "
                            f"features: {', '.join(ids)}") from None
+    why = datum_problem(feature.tolerance)
+    if why:
+        raise InspectError(f"{scene.source or 'scene'}: feature {feature.id!r}: cannot judge the tolerance: {why}")
     pc = _load_points(scene, feature, points, sections)
     if pc is not None:
         return _from_points(scene, feature, pc, bonus_basis)
@@ -476,13 +436,28 @@ def _from_points(scene: Scene, feature: Feature, pc: PointCloud, bonus_basis: st
                 f"axis at ({units.fmt(feature.at[0])}, {units.fmt(feature.at[1])}): seen from it they "
                 f"leave a gap of {math.degrees(gap):.0f} degrees. Expected points in the datum frame, "
                 "around the feature's basic location")
-    # sections: least squares, mating circle, local sizes
+    # a first least-squares line through the centres of the rings as measured starts the fits
+    try:
+        rough = np.array([[*F.ls_circle(P[g, :2])[:2], z] for g, z in zip(groups, zs)])
+    except F.FitError as e:
+        raise InspectError(f"{file}: {e}") from None
+    z0 = float(P[:, 2].mean())
+    x_ls, r_ls = F.ls_cylinder(P, _line_through(rough, z0), z0)
+    # sections normal to the axis of the associated (least-squares) cylinder (ISO 14405-1 local
+    # sizes, ISO 17450-3 / ISO 1101 median line): each ring is taken in that axis's frame, so a
+    # perfect cylinder gives its true diameter however it is tilted
+    R, p0 = _axis_frame(x_ls, z0)
+    Q = (P - p0) @ R.T
     secs = []
     for g, lab, z in zip(groups, labels, zs):
         try:
-            secs.append(_section(P[g, :2], z, lab, hole))
+            sq = _section(Q[g, :2], float(Q[g, 2].mean()), lab, hole)
         except F.FitError as e:
             raise InspectError(f"{file}: section {lab} (z = {units.fmt(z)}): {e}") from None
+        c3 = np.array([*sq.ls_centre, sq.z]) @ R + p0
+        m3 = np.array([*sq.mating_centre, sq.z]) @ R + p0
+        secs.append(replace(sq, z=float(c3[2]), ls_centre=(float(c3[0]), float(c3[1])),
+                            mating_centre=(float(m3[0]), float(m3[1]))))
     dia_mean = float(np.mean([s.ls_diameter for s in secs]))
     lo, hi = feature.limits
     nominal = 0.5 * (lo + hi)
@@ -508,24 +483,21 @@ def _from_points(scene: Scene, feature: Feature, pc: PointCloud, bonus_basis: st
     sec_index = np.empty(len(P), int)
     for i, g in enumerate(groups):
         sec_index[g] = i
-    centres = np.c_[[s.ls_centre for s in secs], zs]
+    centres = np.array([[*s.ls_centre, s.z] for s in secs])
 
     # cylinders: least squares, unrelated and related envelopes
-    z0 = float(P[:, 2].mean())
-    x_line = _line_through(centres, z0)
-    x_ls, r_ls = F.ls_cylinder(P, x_line, z0)
     ls_env = _envelope("least-squares cylinder", x_ls, z0, r_ls, "any orientation (Gaussian fit)")
     radial = F.axis_distances(P, x_ls, z0) - r_ls
-    mate = "actual mating envelope"
+    std = scene.standard
+    pos = tol is not None and tol.characteristic is Characteristic.POSITION
     x_un, r_un = F.minimax_cylinder(P, x_ls, z0, inscribed=hole)
-    unrelated = _envelope(f"unrelated {mate}", x_un, z0, r_un, "any orientation")
-    related = _related(feature, P, x_un, z0, hole, mate)
+    unrelated = _envelope(envelope_name(std, hole, False, False), x_un, z0, r_un, "any orientation")
+    related = _related(feature, P, x_un, z0, hole, envelope_name(std, hole, True, False, pos))
     lm_un = lm_rel = None
     if tol is not None and tol.material is Material.LMC:
-        mm = "minimum material envelope"
         x_lm, r_lm = F.minimax_cylinder(P, x_ls, z0, inscribed=not hole)
-        lm_un = _envelope(f"unrelated actual {mm}", x_lm, z0, r_lm, "any orientation")
-        lm_rel = _related(feature, P, x_lm, z0, not hole, f"actual {mm}")
+        lm_un = _envelope(envelope_name(std, hole, False, True), x_lm, z0, r_lm, "any orientation")
+        lm_rel = _related(feature, P, x_lm, z0, not hole, envelope_name(std, hole, True, True, pos))
     axis = _axis_reading(feature, centres, _line_through(centres, 0.0))
     local = (min(s.local_min for s in secs), max(s.local_max for s in secs))
     U = feature.measured.uncertainty if feature.measured else None
@@ -533,10 +505,10 @@ def _from_points(scene: Scene, feature: Feature, pc: PointCloud, bonus_basis: st
             getattr(feature.measured, k) is not None for k in ("size", "related_size", "axis_deviation", "axis_bottom")):
         notes.append("typed [feature.measured] values are not used: the results come from the points")
     ls = _least_squares(scene, feature, ls_env, centres, axis)
-    return _finish(
-        scene, feature, bonus_basis, source="points", source_file=file, points=P, point_section=sec_index,
-        radial=radial, sections=tuple(secs), median_line=centres, unrelated=unrelated, related=related,
-        lm_un=lm_un, lm_rel=lm_rel, local=local, axis=axis, U=U, ls=ls, notes=notes, warnings=warnings)
+    return _finish(scene, feature, bonus_basis, _Fit(
+        "points", file, points=P, point_section=sec_index, radial=radial, sections=tuple(secs),
+        median_line=centres, unrelated=unrelated, related=related, lm_un=lm_un, lm_rel=lm_rel, local=local,
+        axis=axis, U=U, ls=ls, notes=tuple(notes), warnings=tuple(warnings)))
 
 
 def _from_values(scene: Scene, feature: Feature, bonus_basis: str) -> InspectionResult:
@@ -565,58 +537,117 @@ def _from_values(scene: Scene, feature: Feature, bonus_basis: str) -> Inspection
         rel = un - axis.deviation if hole else un + axis.deviation
         notes.append("no related_size typed: related envelope estimated as size " + ("-" if hole else "+")
                      + " axis deviation (perfect form assumed), so axis and surface readings agree by construction")
+    std = scene.standard
+    pos = tol is not None and tol.characteristic is Characteristic.POSITION
     mk = lambda name, d: None if d is None else Envelope(name, d, (*feature.at, 0.0), (0.0, 0.0, 1.0), "typed value")
-    unrelated = mk("unrelated actual mating envelope", un)
-    related = mk("related actual mating envelope", rel)
+    unrelated = mk(envelope_name(std, hole, False, False), un)
+    related = mk(envelope_name(std, hole, True, False, pos), rel)
     lm_un = lm_rel = None
     if tol is not None and tol.material is Material.LMC:
         # typed sizes are read as the envelopes the modifier uses
-        lm_un, lm_rel = mk("unrelated actual minimum material envelope", un), mk(
-            "related actual minimum material envelope", rel)
-        notes.append("LMC modifier: the typed size and related_size are read as minimum material envelopes")
-    return _finish(
-        scene, feature, bonus_basis, source="values", source_file=scene.source, points=None, point_section=None,
-        radial=None, sections=(), median_line=None if axis is None or not len(axis.line) else axis.line,
-        # under LMC the typed sizes are minimum material envelopes, not mating envelopes: Rule #1
-        # (which needs the mating envelope) is then not evaluated rather than judged on the wrong size
+        lm_un, lm_rel = mk(envelope_name(std, hole, False, True), un), mk(envelope_name(std, hole, True, True, pos), rel)
+        notes.append("LMC modifier: the typed size and related_size are read as "
+                     + ("actual minimum material envelopes" if std is Standard.ASME else
+                        "minimum material side associated cylinders"))
+    return _finish(scene, feature, bonus_basis, _Fit(
+        "values", scene.source, median_line=None if axis is None or not len(axis.line) else axis.line,
+        # under LMC the typed sizes are minimum material envelopes, not mating envelopes: the
+        # envelope (which needs the mating envelope) is then not evaluated rather than judged on
+        # the wrong size
         unrelated=None if lm_un is not None else unrelated, related=None if lm_rel is not None else related,
-        lm_un=lm_un, lm_rel=lm_rel, local=m.local_sizes, axis=axis,
-        U=m.uncertainty, ls=None, notes=notes, warnings=[])
+        lm_un=lm_un, lm_rel=lm_rel, local=m.local_sizes, axis=axis, U=m.uncertainty, notes=tuple(notes)))
 
 
-def _bonus(feature: Feature, env: float | None, standard: Standard, units: Units, basis_name: str):
+def envelope_name(standard: Standard, hole: bool, related: bool, minimum_material: bool,
+                  position: bool = False) -> str:
+    """Name of a fitted envelope in the standard's own terms.
+
+    ASME Y14.5: (un)related actual mating / minimum material envelope. ISO 14405-1 / ISO 5459:
+    the associated cylinder, maximum inscribed (GX) or minimum circumscribed (GN), unconstrained
+    or constrained in orientation (and location) by the datum."""
+    if standard is Standard.ASME:
+        return (f"{'related' if related else 'unrelated'} actual "
+                f"{'minimum material' if minimum_material else 'mating'} envelope")
+    inscribed = hole != minimum_material
+    kind = "maximum inscribed (GX)" if inscribed else "minimum circumscribed (GN)"
+    side = "minimum material side, " if minimum_material else ""
+    held = ("located at the true position, normal to A" if position else "orientation constrained to A") \
+        if related else "unconstrained"
+    return f"associated cylinder, {side}{kind}, {held}"
+
+
+def envelope_abbr(standard: Standard, hole: bool, minimum_material: bool) -> str:
+    """Short symbol of the envelope size used in formulas: AME / AMME (ASME), GX / GN (ISO)."""
+    if standard is Standard.ASME:
+        return "AMME" if minimum_material else "AME"
+    return "GX" if hole != minimum_material else "GN"
+
+
+def _bonus(feature: Feature, env: float | None, standard: Standard, units: Units, basis_name: str,
+           abbr: str = "AME", unrelated: bool = False):
     """(bonus, formula, note) earned by an envelope size; clamped to 0 .. bonus_max."""
     tol = feature.tolerance
     if tol is None:
         return None, "", None
-    if tol.material is Material.RFS:
-        return 0.0, f"{term('bonus', standard)[0]} = 0 ({term('rfs', standard)[0]}: no modifier)", None
-    if env is None:
-        return None, "", f"no {basis_name} size: bonus not evaluated"
-    hole = feature.kind is Kind.HOLE
     B = term("bonus", standard)[0]
+    if tol.material is Material.RFS:
+        return 0.0, f"{B} = 0 ({term('rfs', standard)[0]}: no modifier)", None
+    if env is None:
+        return None, "", f"no {basis_name} size: {B} not evaluated"
+    hole = feature.kind is Kind.HOLE
     if tol.material is Material.MMC:
         ref, rn = feature.mmc, term("mmc", standard)[0]
         raw = env - ref if hole else ref - env
-        sym = f"AME - {rn}" if hole else f"{rn} - AME"
+        sym = f"{abbr} - {rn}" if hole else f"{rn} - {abbr}"
         nums = (env, ref) if hole else (ref, env)
     else:
         ref, rn = feature.lmc, term("lmc", standard)[0]
         raw = ref - env if hole else env - ref
-        sym = f"{rn} - AMME" if hole else f"AMME - {rn}"
+        sym = f"{rn} - {abbr}" if hole else f"{abbr} - {rn}"
         nums = (ref, env) if hole else (env, ref)
     bmax = _bonus_max(feature)
     val = min(max(raw, 0.0), bmax)
     note = None
     if raw < -SLACK:
+        env_applies = envelope_applies(feature, standard) and tol.material is Material.MMC
         note = f"the {basis_name} is beyond the {rn} size: no {B}" + (
-            " (and the size fails the envelope)" if basis_name.startswith("unrelated") else "")
+            f" (and the size violates the envelope at {rn})" if env_applies and unrelated else "")
     elif raw > bmax + SLACK:
         note = f"the {basis_name} is beyond the other size limit: {B} capped at {units.fmt(bmax)}"
     formula = f"{B} = {sym} = {units.fmt(nums[0])} - {units.fmt(nums[1])} = {units.fmt(raw)}"
     if abs(val - raw) > SLACK:
         formula += f" -> {units.fmt(val)}"
     return val, formula, note
+
+
+def _local_increases(feature: Feature, sections) -> np.ndarray:
+    """Per section, the increase its actual local sizes earn for straightness of the derived
+    median line at MMC (LMC): the departure from MMC (LMC) of the local size nearest to it,
+    clamped to 0 .. the size tolerance (ASME Y14.5, straightness of a derived median line at
+    MMC: "as each actual local size departs from MMC an increase in the local tolerance equal to
+    the amount of such departure is allowed", from memory). The local size nearest the limit
+    gives the smallest increase, so the reading is on the safe side."""
+    tol = feature.tolerance
+    hole = feature.kind is Kind.HOLE
+    lo = np.array([s.local_min for s in sections])
+    hi = np.array([s.local_max for s in sections])
+    if tol.material is Material.MMC:
+        dep = lo - feature.mmc if hole else feature.mmc - hi
+    else:
+        dep = feature.lmc - hi if hole else lo - feature.lmc
+    return np.clip(dep, 0.0, _bonus_max(feature))
+
+
+def straightness_needed(centres: np.ndarray, increases: np.ndarray) -> tuple[float, int, np.ndarray]:
+    """Smallest stated tolerance the median line needs when each section earns its own increase:
+    min over straight lines L of max_i (2 dist(c_i, L) - increase_i). Returns (that value, the
+    governing section, the line (a, b, u, v) at z = mean height)."""
+    z0 = float(centres[:, 2].mean())
+    x0 = _line_through(centres, z0)
+    x, r = F.minimax_cylinder(centres, x0, z0, inscribed=False, offsets=0.5 * np.asarray(increases, float))
+    d = F.axis_distances(centres, x, z0)
+    k = int(np.argmax(2 * d - increases))
+    return 2.0 * r, k, x
 
 
 def _least_squares(scene: Scene, feature: Feature, cyl: Envelope, centres, axis: AxisReading | None):
@@ -628,216 +659,368 @@ def _least_squares(scene: Scene, feature: Feature, cyl: Envelope, centres, axis:
     dev = b = allowed = None
     axis_ok = None
     if tol is not None and axis is not None:
-        # the CMM evaluates the LS cylinder's axis over the feature (or the projected height)
-        if tol.projected:
-            zz = np.array([-tol.projected, 0.0])
-        else:
-            zz = np.array([0.0, feature.length])
-        line = np.c_[[cyl.at_z(z) for z in zz], zz]
         if tol.characteristic is Characteristic.STRAIGHTNESS:
-            dev = 0.0  # a straight cylinder axis has no straightness error
+            # the usual printout: section centres against their least-squares line (not the
+            # minimum zone): twice the largest distance of a centre from that line
+            z0 = float(centres[:, 2].mean())
+            xl = _line_through(centres, z0)
+            dev = 2.0 * float(F.axis_distances(centres, xl, z0).max())
+            how = f"section centres against their least-squares line: {units.fmt(dev)}"
         else:
+            # the CMM evaluates the LS cylinder's axis over the feature (or the projected height)
+            zz = np.array([-tol.projected, 0.0]) if tol.projected else np.array([0.0, feature.length])
+            line = np.c_[[cyl.at_z(z) for z in zz], zz]
             r = _axis_reading(feature.with_(tolerance=replace(tol, projected=None)), line, None)
             dev = r.deviation
-        b, bf, _ = _bonus(feature, size, std, units, "least-squares size")
-        bf = bf.replace("AMME", "LS").replace("AME", "LS")
-        allowed = tol.value + (b or 0.0)
-        formulas += [f"axis of the least-squares cylinder: {units.fmt(dev)} over z = {units.fmt(zz[0])} .. {units.fmt(zz[1])}",
-                     bf, f"tolerance allowed = t + {term('bonus', std)[0]} = {units.fmt(tol.value)} + "
-                         f"{units.fmt(b or 0.0)} = {units.fmt(allowed)}"]
+            how = f"axis of the least-squares cylinder: {units.fmt(dev)} over z = {units.fmt(zz[0])} .. {units.fmt(zz[1])}"
+        b, bf, _ = _bonus(feature, size, std, units, "least-squares size", abbr="LS")
+        allowed_d = tolerance_allowed_derived(feature, b or 0.0)
+        allowed = allowed_d.value
+        formulas += [how, bf, allowed_d.formula(units, std)]
         axis_ok = dev <= allowed + SLACK
     return LeastSquaresResult(cyl, size, dev, b, allowed, lo - SLACK <= size <= hi + SLACK, axis_ok, tuple(formulas))
 
 
-def _finish(scene, feature, bonus_basis, *, source, source_file, points, point_section, radial, sections,
-            median_line, unrelated, related, lm_un, lm_rel, local, axis, U, ls, notes, warnings):
+def _line_reading(feature: Feature, env: Envelope, basis: str, method: str) -> AxisReading | None:
+    """Zone reading of the straight axis of an envelope over the feature (or the projected height)."""
+    tol = feature.tolerance
+    zz = np.array([-tol.projected, 0.0]) if tol.projected else np.array([0.0, feature.length])
+    line = np.c_[[env.at_z(z) for z in zz], zz]
+    r = _axis_reading(feature, line, _line_through(line, 0.0))
+    if r is None:
+        return None
+    return AxisReading(r.deviation, r.diameter_reading, r.width_reading,
+                       f"{method} over z = {zz[0]:g} .. {zz[1]:g}", r.line, basis)
+
+
+def governing_axis(feature: Feature, standard: Standard) -> tuple[str, str]:
+    """(basis, why): which axis reading a tolerance applies to, by standard.
+
+    ASME Y14.5 (definitions of feature axis and derived median line, from memory): position and
+    orientation of a feature of size apply to its feature axis, the axis of the unrelated actual
+    mating envelope (for LMC, of the actual minimum material envelope); the derived median line
+    is toleranced only by straightness of a derived median line. ISO 1101: the tolerance applies
+    to the extracted median line (centres of the sections normal to the associated axis)."""
+    tol = feature.tolerance
+    if tol is not None and tol.characteristic is Characteristic.STRAIGHTNESS:
+        name = "derived median line" if standard is Standard.ASME else "extracted median line"
+        return "median line", (f"straightness of the {name}: the tolerance applies to the section centres "
+                               f"({'ASME Y14.5' if standard is Standard.ASME else 'ISO 1101'})")
+    if standard is Standard.ASME:
+        env = "actual minimum material envelope" if tol is not None and tol.material is Material.LMC \
+            else "unrelated actual mating envelope"
+        return "feature axis", ("ASME Y14.5: position and orientation of a feature of size apply to its feature "
+                                f"axis, the axis of the {env}; the derived median line is toleranced only by "
+                                "straightness of a derived median line")
+    return "median line", ("ISO 1101: the tolerance applies to the extracted median line, the centres of "
+                           "the sections normal to the associated cylinder's axis")
+
+
+@dataclass(frozen=True)
+class _Fit:
+    """What a driver measured, handed to :func:`_finish`."""
+
+    source: str
+    source_file: str | None
+    points: np.ndarray | None = None
+    point_section: np.ndarray | None = None
+    radial: np.ndarray | None = None
+    sections: tuple = ()
+    median_line: np.ndarray | None = None
+    unrelated: Envelope | None = None
+    related: Envelope | None = None
+    lm_un: Envelope | None = None
+    lm_rel: Envelope | None = None
+    local: tuple[float, float] | None = None
+    axis: AxisReading | None = None  # median-line reading (points), or the typed reading
+    U: float | None = None
+    ls: LeastSquaresResult | None = None
+    notes: tuple[str, ...] = ()
+    warnings: tuple[str, ...] = ()
+
+
+def _finish(scene: Scene, feature: Feature, bonus_basis: str, m: _Fit) -> InspectionResult:
     units, std = scene.units, scene.standard
     fmt = units.fmt
     tol = feature.tolerance
     hole = feature.kind is Kind.HOLE
     lo, hi = feature.limits
+    U = m.U
     formulas: list[str] = []
-    notes = list(notes)
+    notes = list(m.notes)
+    iso = std is Standard.ISO
+    B = term("bonus", std)[0]
     if tol is not None and not tol.datums and bonus_basis == "related":
         notes.append("straightness has no datum: the related envelope is the unrelated one")
     lmc = tol is not None and tol.material is Material.LMC
-    un_env = lm_un if lmc else unrelated
-    rel_env = (lm_rel if lmc else related)
+    un_env = m.lm_un if lmc else m.unrelated
+    rel_env = m.lm_rel if lmc else m.related
     if tol is not None and (tol.characteristic is Characteristic.STRAIGHTNESS or not tol.datums):
         rel_env = un_env
     basis_env = un_env if bonus_basis == "unrelated" else rel_env
-    basis_name = ("unrelated " if bonus_basis == "unrelated" else "related ") + (
-        "actual minimum material envelope" if lmc else "actual mating envelope")
-    bonus, bform, bnote = _bonus(feature, None if basis_env is None else basis_env.diameter, std, units, basis_name)
+    basis_name = envelope_name(std, hole, bonus_basis == "related", lmc,
+                               tol is not None and tol.characteristic is Characteristic.POSITION)
+    abbr = envelope_abbr(std, hole, lmc)
+    straight_local = (tol is not None and tol.characteristic is Characteristic.STRAIGHTNESS
+                      and tol.material is not Material.RFS)
+
+    # ------------------------------------------------------------ bonus and tolerance allowed
+    increases = None
+    if straight_local and m.sections:
+        increases = _local_increases(feature, m.sections)
+        bonus = bform = bnote = None
+    elif straight_local and m.local is not None:
+        # typed local sizes: the local size nearest the limit earns the smallest increase
+        ref = feature.mmc if tol.material is Material.MMC else feature.lmc
+        near = min(m.local, key=lambda v: abs(v - ref))
+        bonus = float(np.clip(abs(near - ref), 0.0, _bonus_max(feature)))
+        rn = term("mmc" if tol.material is Material.MMC else "lmc", std)[0]
+        bform = (f"{B} = |local size nearest {rn} - {rn}| = |{fmt(near)} - {fmt(ref)}| = {fmt(bonus)} "
+                 "(straightness: the increase comes from the actual local sizes)")
+        bnote = None
+    elif straight_local:
+        bonus, bform, bnote = None, "", "straightness at a modifier: no local sizes, so no increase is evaluated"
+    else:
+        bonus, bform, bnote = _bonus(feature, None if basis_env is None else basis_env.diameter, std, units,
+                                     basis_name, abbr, unrelated=bonus_basis == "unrelated")
+        if bform and tol.material is not Material.RFS:
+            bform += f"  ({basis_name})"
     if bform:
-        formulas.append(bform + (f"  ({basis_name})" if tol.material is not Material.RFS else ""))
+        formulas.append(bform)
     if bnote:
         notes.append(bnote)
     allowed = None
-    if tol is not None and bonus is not None:
-        allowed = tol.value + bonus
-        formulas.append(f"tolerance allowed = t + {term('bonus', std)[0]} = {fmt(tol.value)} + {fmt(bonus)} = {fmt(allowed)}")
+    if increases is not None:
+        needed, g, _ = straightness_needed(m.median_line, increases)
+        bonus = float(increases[g])
+        sec = m.sections[g]
+        formulas.append(
+            f"{B} per section = departure from {term('mmc' if tol.material is Material.MMC else 'lmc', std)[0]} of "
+            f"the local size nearest it: {fmt(float(increases.min()))} .. {fmt(float(increases.max()))}; "
+            f"governing section {sec.label}: {B} {fmt(bonus)}")
+        d_allowed = tolerance_allowed_derived(feature, bonus)
+        allowed = d_allowed.value
+        formulas.append(d_allowed.formula(units, std) + f" (section {sec.label})")
+        formulas.append(f"median line against a straight line, each section with its own {B}: "
+                        f"t needed = max(2 r_i - {B}_i) = {fmt(needed)}")
+    elif tol is not None and bonus is not None:
+        d_allowed = tolerance_allowed_derived(feature, bonus)
+        allowed = d_allowed.value
+        formulas.append(d_allowed.formula(units, std))
     vc = virtual_condition(feature)
     fr = analyse_feature(feature, std)
     if vc is not None:
         formulas.append(fr.virtual_condition.formula(units, std))
+    vcn = term(fr.virtual_condition.key, std)[0]
 
-    # size
-    if local is not None:
-        local_check = decide("local sizes", local, lo, hi, U, fmt)
+    # ------------------------------------------------------------ size
+    if m.local is not None:
+        local_check = decide("local sizes", m.local, lo, hi, U, units)
     else:
-        local_check = _not_evaluated("local sizes", "no local sizes")
+        local_check = not_evaluated("local sizes", "no local sizes")
     env_check = None
     if envelope_applies(feature, std):
         ename = "envelope (Rule #1)" if std is Standard.ASME else "envelope (E)"
-        if unrelated is None:
-            env_check = _not_evaluated(ename, "no unrelated mating size")
+        mm = term("mmc", std)[0]
+        if m.unrelated is None:
+            env_check = not_evaluated(ename, f"no unrelated mating size ({'AME' if not iso else 'GX/GN'})")
         else:
-            mm = term("mmc", std)[0]
-            c = decide(ename, (unrelated.diameter,), feature.mmc if hole else None,
-                       None if hole else feature.mmc, U, fmt)
-            env_check = Check(c.name, c.conforms, c.outcome, f"unrelated AME {c.detail} ({mm})", c.values, c.low, c.high)
-    size_check = _combine("size", [local_check] + ([env_check] if env_check else []))
+            c = decide(ename, (m.unrelated.diameter,), feature.mmc if hole else None,
+                       None if hole else feature.mmc, U, units)
+            what = "unrelated AME" if not iso else ("GX" if hole else "GN")
+            env_check = with_detail(c, f"{what} {c.detail} ({mm})")
+    size_check = combine("size", [local_check, env_check])
 
-    # axis
-    if tol is None:
-        axis_check = _not_evaluated("axis", "no geometric tolerance")
-    elif axis is None or axis.deviation is None:
-        axis_check = _not_evaluated("axis", "no axis deviation")
-    elif allowed is None:
-        axis_check = _not_evaluated("axis", "no tolerance allowed (no envelope size for the bonus)")
-    else:
-        axis_check = decide("axis", (axis.deviation,), None, allowed, U, fmt)
-
-    # surface (functional gauge)
-    if tol is None:
-        surface_check = _not_evaluated("surface", "no geometric tolerance")
-    elif tol.material is Material.RFS:
-        surface_check = _not_evaluated("surface", "RFS: no virtual condition; the tolerance applies to the axis only")
-    elif tol.projected:
-        if un_env is None or points is None or allowed is None:
-            surface_check = _not_evaluated("surface", "projected zone: needs points (the envelope's axis)")
-        else:
-            zz = np.array([-tol.projected, 0.0])
-            line = np.c_[[un_env.at_z(z) for z in zz], zz]
-            r = _axis_reading(feature, line, _line_through(line, 0.0))
-            c = decide("surface", (r.deviation,), None, allowed, U, fmt)
-            surface_check = Check("surface", c.conforms, c.outcome,
-                                  f"axis of the unrelated envelope (the gauge pin that fits) extended over the "
-                                  f"projected height: {c.detail}", c.values, c.low, c.high)
-            notes.append("projected zone: the surface reading takes the axis of the pin that fits the feature "
-                         "(the unrelated envelope) through the projected height (common practice, no source)")
-    elif rel_env is None:
-        surface_check = _not_evaluated("surface", "no related envelope size")
-    else:
-        vcn = term(fr.virtual_condition.key, std)[0]
-        low_side = (hole and not lmc) or (not hole and lmc)
-        c = decide("surface", (rel_env.diameter,), vc if low_side else None, None if low_side else vc, U, fmt)
-        what = "related AMME" if lmc else "related AME"
-        if tol.characteristic is Characteristic.STRAIGHTNESS:
-            what = what.replace("related", "unrelated")
-        surface_check = Check("surface", c.conforms, c.outcome, f"{what} {c.detail} ({vcn})", c.values, c.low, c.high)
-
+    # ------------------------------------------------------------ axis readings
+    median = m.axis
     feature_axis = None
-    if points is not None and un_env is not None and tol is not None and tol.datums:
-        zz = np.array([-tol.projected, 0.0]) if tol.projected else np.array([0.0, feature.length])
-        line = np.c_[[un_env.at_z(z) for z in zz], zz]
-        r = _axis_reading(feature, line, _line_through(line, 0.0))
-        if r is not None:
-            feature_axis = AxisReading(r.deviation, r.diameter_reading, r.width_reading,
-                                       "feature axis: the axis of the unrelated envelope over "
-                                       f"z = {zz[0]:g} .. {zz[1]:g} (ASME Y14.5-2009 §1.3 'feature axis', from memory)",
-                                       r.line)
-            if (axis is not None and axis.deviation is not None and allowed is not None
-                    and (axis.deviation <= allowed) != (r.deviation <= allowed)):
-                notes.append(
-                    f"the feature axis (axis of the unrelated envelope) needs {fmt(r.deviation)}, the derived "
-                    f"median line {fmt(axis.deviation)}: they fall on opposite sides of the tolerance allowed "
-                    f"{fmt(allowed)}. The axis verdict follows the derived median line (ISO 1101's extracted "
-                    "median line; the section centres); an ASME reading on the feature axis would differ, "
-                    "and the surface (gauge) reading is the functional check either way.")
+    if m.points is not None and un_env is not None and tol is not None and tol.datums:
+        feature_axis = _line_reading(feature, un_env, "feature axis",
+                                     f"feature axis: the axis of the {envelope_name(std, hole, False, lmc)}")
+    basis, why_axis = governing_axis(feature, std) if tol is not None else ("median line", "")
+    if m.source == "values":
+        governing = median
+        if median is not None and tol is not None and tol.characteristic is not Characteristic.STRAIGHTNESS:
+            notes.append(f"the typed axis reading is taken as the {basis} reading, which governs here ({why_axis})")
+    else:
+        governing = feature_axis if basis == "feature axis" else median
+    other = None
+    if m.source == "points" and tol is not None and tol.characteristic is not Characteristic.STRAIGHTNESS:
+        other = median if governing is feature_axis else feature_axis
 
-    explanation = _explain(feature, std, units, axis_check, surface_check, sections, un_env, rel_env, ls, bonus,
-                           allowed, axis)
+    if tol is None:
+        axis_check = not_evaluated("axis", "no geometric tolerance")
+    elif increases is not None:
+        c = decide("axis", (needed,), None, tol.value, U, units)
+        axis_check = with_detail(c, f"t needed after each section's {B} {c.detail} (t)")
+    elif governing is None or governing.deviation is None:
+        axis_check = not_evaluated("axis", "no axis deviation")
+    elif allowed is None:
+        axis_check = not_evaluated("axis", f"no tolerance allowed (no envelope size for the {B})")
+    else:
+        c = decide("axis", (governing.deviation,), None, allowed, U, units)
+        axis_check = with_detail(c, f"{governing.basis} {c.detail}")
+    other_check = None
+    if other is not None and other.deviation is not None and allowed is not None:
+        c = decide("axis", (other.deviation,), None, allowed, U, units)
+        other_check = with_detail(c, f"{other.basis} {c.detail}", name=f"{other.basis} (not governing)")
+
+    # ------------------------------------------------------------ surface (functional gauge)
+    if tol is None:
+        surface_check = not_evaluated("surface", "no geometric tolerance")
+    elif tol.material is Material.RFS:
+        mod = term("rfs", std)[0]
+        surface_check = not_evaluated("surface", f"{mod}: no virtual condition; the tolerance applies to the axis only")
+    elif tol.projected:
+        if un_env is None or m.points is None or allowed is None:
+            surface_check = not_evaluated("surface", "projected zone: needs points (the envelope's axis)")
+        else:
+            r = _line_reading(feature, un_env, "feature axis", "")
+            c = decide("surface", (r.deviation,), None, allowed, U, units)
+            surface_check = with_detail(c, f"axis of the {envelope_name(std, hole, False, lmc)} (the gauge pin that "
+                                           f"fits) extended over the projected height: {c.detail}")
+            notes.append("projected zone: the surface reading takes the axis of the pin that fits the feature "
+                         "through the projected height (common practice, no source)")
+    elif rel_env is None:
+        surface_check = not_evaluated("surface", "no related envelope size")
+    else:
+        low_side = (hole and not lmc) or (not hole and lmc)
+        c = decide("surface", (rel_env.diameter,), vc if low_side else None, None if low_side else vc, U, units)
+        if iso:
+            what = "GX" if hole != lmc else "GN"
+            what += " (unconstrained)" if tol.characteristic is Characteristic.STRAIGHTNESS else " (constrained to A)"
+        else:
+            what = "related AMME" if lmc else "related AME"
+            if tol.characteristic is Characteristic.STRAIGHTNESS:
+                what = what.replace("related", "unrelated")
+        surface_check = with_detail(c, f"{what} {c.detail} ({vcn})")
+
+    # ------------------------------------------------------------ the one verdict
+    if tol is None:
+        gov = ("size",)
+        why = "no geometric tolerance: size only"
+    elif tol.material is Material.RFS:
+        gov = ("size", "axis")
+        why = f"no modifier: the tolerance applies to the axis ({why_axis})" if why_axis else "no modifier"
+    else:
+        gov = ("size", "surface")
+        mod = {Material.MMC: "(M)", Material.LMC: "(L)"}[tol.material]
+        if iso:
+            why = (f"{mod}: ISO 2692 states the requirement on the surface, which must not violate the {vcn}; "
+                   "the median-line reading with its increase is shown beside it")
+        else:
+            why = (f"{mod}: the surface must not violate the virtual condition; where the axis and surface "
+                   "interpretations differ, ASME Y14.5 gives the surface interpretation precedence")
+    vnotes = []
+    if readings_disagree(axis_check, surface_check):
+        vnotes.append(f"Axis and surface readings disagree: axis {axis_check.detail} "
+                      f"({axis_check.outcome_text}); surface {surface_check.detail} ({surface_check.outcome_text}). "
+                      f"The {'surface' if 'surface' in gov else 'axis'} reading governs.")
+    if other_check is not None and readings_disagree(other_check, axis_check):
+        vnotes.append(f"The {other.basis} reading ({other_check.detail}) does not govern here: {why_axis}.")
+    verdict = part_verdict(size_check, axis_check, surface_check, gov, why, vnotes)
+
+    explanation = _explain(feature, std, units, axis_check, surface_check, m.sections, un_env, m.ls, allowed,
+                           governing, other_check, gov)
     return InspectionResult(
-        feature=feature, units=units, standard=std, source=source, source_file=source_file,
-        points=points, point_section=point_section, radial_deviation=radial, sections=sections,
-        median_line=median_line, unrelated=unrelated, related=related, least_material=lm_un,
-        least_material_related=lm_rel,
-        unrelated_ame=None if unrelated is None else unrelated.diameter,
-        related_ame=None if related is None else related.diameter,
-        local_sizes=None if local is None else (float(local[0]), float(local[1])),
-        axis=axis, bonus_basis=bonus_basis, bonus=bonus, tolerance_allowed=allowed, virtual_condition=vc,
+        feature=feature, units=units, standard=std, source=m.source, source_file=m.source_file,
+        points=m.points, point_section=m.point_section, radial_deviation=m.radial, sections=m.sections,
+        median_line=m.median_line, unrelated=m.unrelated, related=m.related, least_material=m.lm_un,
+        least_material_related=m.lm_rel,
+        unrelated_ame=None if m.unrelated is None else m.unrelated.diameter,
+        related_ame=None if m.related is None else m.related.diameter,
+        local_sizes=None if m.local is None else (float(m.local[0]), float(m.local[1])),
+        axis=governing, bonus_basis=bonus_basis, bonus=bonus, tolerance_allowed=allowed, virtual_condition=vc,
         uncertainty=U, formulas=tuple(formulas), size_check=size_check, local_check=local_check,
-        envelope_check=env_check, axis_check=axis_check, surface_check=surface_check, least_squares=ls,
-        explanation=tuple(explanation), notes=tuple(notes), warnings=tuple(warnings), feature_axis=feature_axis)
-
-
-GOVERNS_ASME = ("ASME Y14.5-2009 §7.3.3.1 (from memory; the same words carry into Y14.5-2018's position "
-                "section): where the axis and surface interpretations of a tolerance at MMC differ, the "
-                "surface interpretation takes precedence. The surface (gauge) reading governs.")
-GOVERNS_ISO = ("ISO 2692:2021 (from memory) states the maximum/least material requirement as a virtual "
-               "condition the surface must not violate, so the surface (gauge) reading is the requirement.")
+        envelope_check=env_check, axis_check=axis_check, surface_check=surface_check, least_squares=m.ls,
+        explanation=tuple(explanation), notes=tuple(notes), warnings=tuple(m.warnings), feature_axis=feature_axis,
+        median_axis=median, other_axis_check=other_check, axis_governs=why_axis, verdict=verdict,
+        section_increases=None if increases is None else tuple(float(v) for v in increases))
 
 
 def _axis_difference(ls_axis, dml_axis, units: Units) -> str:
-    """Mention the axis readings only where they differ, with a digit more if the usual
-    precision would print them equal."""
-    if ls_axis is None or dml_axis is None:
+    """Mention the axis readings only where they differ (with the digits that tell them apart)."""
+    if ls_axis is None or dml_axis is None or abs(ls_axis - dml_axis) <= SLACK:
         return ""
-    fmt = units.fmt
-    if fmt(ls_axis) == fmt(dml_axis):
-        if round(ls_axis, units.decimals + 1) == round(dml_axis, units.decimals + 1):
-            return ""
-        d = units.decimals + 1
-        a, b = f"{ls_axis:.{d}f}", f"{dml_axis:.{d}f}"
-    else:
-        a, b = fmt(ls_axis), fmt(dml_axis)
-    return f", and reads the axis of the fitted cylinder ({a}) instead of the section centres ({b})"
+    a, b = units.fmt_cmp(ls_axis, dml_axis)
+    if a == b:
+        return ""
+    return f", and reads the axis of the fitted cylinder ({a}) instead of the governing axis reading ({b})"
 
 
-def _explain(feature, std, units, axis_check, surface_check, sections, un_env, rel_env, ls, bonus, allowed, axis):
-    fmt = units.fmt
+def _spread(units: Units, what: str, vals) -> str:
+    """"the X run from a to b" where a and b differ on paper, else "the X are all a"."""
+    lo, hi = units.fmt_cmp(min(vals), max(vals))
+    return f"{what} are all ⌀{lo}" if lo == hi else f"{what} run from ⌀{lo} to ⌀{hi}"
+
+
+def _explain(feature, std, units, axis_check, surface_check, sections, un_env, ls, allowed, governing,
+             other_check, gov):
     out: list[str] = []
     hole = feature.kind is Kind.HOLE
-    if axis_check.conforms is not None and surface_check.conforms is not None \
-            and axis_check.conforms != surface_check.conforms:
+    B = term("bonus", std)[0]
+    tol = feature.tolerance
+    if readings_disagree(axis_check, surface_check):
         form = ""
         if sections:
-            ds = [s.ls_diameter for s in sections]
-            form = (f" The sections' least-squares diameters run from {fmt(min(ds))} to {fmt(max(ds))} "
-                    f"(roundness up to {fmt(max(s.roundness for s in sections))}): the surface is not a "
-                    "perfect cylinder.")
+            rnd = units.fmt(max(s.roundness for s in sections))
+            form = (f" The sections' least-squares diameters {_spread(units, '', [s.ls_diameter for s in sections]).strip()}"
+                    f" (roundness up to {rnd}): the surface is not a perfect cylinder.")
+            form = form.replace("diameters are all", "diameters are all").replace("diameters run", "diameters run")
+        basis = governing.basis if governing is not None else "axis"
         if not axis_check.conforms:
             out.append(
-                "The axis and surface readings disagree: the derived median line needs more zone than "
-                f"t + bonus ({axis_check.detail}), yet the related envelope clears the virtual condition "
-                f"({surface_check.detail}). The bonus is taken from the {'narrowest' if hole else 'widest'} "
-                "place (the envelope), while the section centres follow the form error; a functional gauge "
+                f"The axis and surface readings disagree: the {basis} needs more zone than t + {B} "
+                f"({axis_check.detail}), yet the related envelope clears the {term('vc_MMC', std)[0] if tol.material is Material.MMC else term('vc_LMC', std)[0]} "
+                f"({surface_check.detail}). The {B} is taken from the {'narrowest' if hole else 'widest'} "
+                "place (the envelope), while the axis follows the form error; a functional gauge "
                 "feels only the surface." + form)
         else:
             out.append(
-                "The axis and surface readings disagree: the derived median line stays within t + bonus "
-                f"({axis_check.detail}), yet the related envelope violates the virtual condition "
+                f"The axis and surface readings disagree: the {basis} stays within t + {B} "
+                f"({axis_check.detail}), yet the related envelope violates the boundary "
                 f"({surface_check.detail}). Form error (bend, lobing, taper) narrows the datum-held "
-                "envelope more than the section centres show." + form)
+                "envelope more than the axis shows." + form)
         out.append(GOVERNS_ASME if std is Standard.ASME else GOVERNS_ISO)
-        if std is Standard.ASME and feature.tolerance.characteristic is not Characteristic.POSITION:
-            out.append(f"That clause is written for position; applying it to {feature.tolerance.characteristic.value} "
-                       "at MMC is an extension by analogy (the virtual condition is the same kind of boundary).")
+        if std is Standard.ASME and tol.characteristic is not Characteristic.POSITION:
+            out.append(f"ASME words that precedence for position; applying it to {tol.characteristic.value} "
+                       "at a modifier is an extension by analogy (the virtual condition is the same kind of boundary).")
+    if other_check is not None and readings_disagree(other_check, axis_check):
+        what = "derived median line" if std is Standard.ASME else "extracted median line"
+        if other_check.name.startswith("median"):
+            out.append(
+                f"A printout of the {what} (the section centres) would say the axis "
+                f"{'conforms' if other_check.conforms else 'does not conform'} ({other_check.detail}); "
+                f"under ASME Y14.5 that line is toleranced only by straightness, while "
+                f"{tol.characteristic.value} applies to the feature axis ({axis_check.detail}).")
+        else:
+            out.append(
+                f"The feature axis (axis of the envelope) would say the axis "
+                f"{'conforms' if other_check.conforms else 'does not conform'} ({other_check.detail}); under ISO 1101 "
+                f"the extracted median line governs ({axis_check.detail}).")
     if ls is not None and ls.axis_conforms is not None and axis_check.conforms is not None:
-        basis = "mating" if feature.tolerance.material is not Material.LMC else "minimum material"
+        env_word = ("mating" if tol.material is not Material.LMC else "minimum material") if std is Standard.ASME \
+            else "associated"
         if ls.axis_conforms != axis_check.conforms or (surface_check.conforms is not None
                                                       and ls.axis_conforms != surface_check.conforms):
             env_d = None if un_env is None else un_env.diameter
+            src = ("the least-squares size" if tol.characteristic is not Characteristic.STRAIGHTNESS
+                   else "the least-squares size (not each local size)")
             out.append(
                 f"A least-squares printout would say the axis {'conforms' if ls.axis_conforms else 'does not conform'}: "
-                f"it takes the bonus from the least-squares size {fmt(ls.size)} (an average through the form "
-                f"error) instead of the {basis} envelope {fmt(env_d)}, giving tolerance allowed "
-                f"{fmt(ls.tolerance_allowed)} against {fmt(allowed)}"
-                + _axis_difference(ls.axis_deviation, None if axis is None else axis.deviation, units)
+                f"it takes the {B} from {src} {units.fmt(ls.size)} (an average through the form "
+                f"error) instead of the {env_word} envelope {units.fmt(env_d)}, giving tolerance allowed "
+                f"{units.fmt(ls.tolerance_allowed)} against {units.fmt(allowed)}"
+                + _axis_difference(ls.axis_deviation, None if governing is None else governing.deviation, units)
                 + ". That is why a gauge and a CMM printout can disagree.")
     return out
+
+
+GOVERNS_ASME = ("ASME Y14.5 (position, surface interpretation): where the axis and surface interpretations of a "
+                "tolerance at MMC differ, the surface interpretation takes precedence. The surface (gauge) reading "
+                "governs.")
+GOVERNS_ISO = ("ISO 2692 states the maximum/least material requirement as a virtual size the surface must not "
+               "violate, so the surface (gauge) reading is the requirement.")
 
 
 # ---------------------------------------------------------------- output
@@ -857,10 +1040,20 @@ def _env_json(e: Envelope | None):
 
 
 def _check_json(c: Check | None):
+    """A check: ``conforms`` is true/false only where proven (null otherwise), ``outcome`` one of
+    the three ISO 14253-1 outcomes, ``evaluated`` false where the check could not be made."""
     if c is None:
         return None
-    return {"conforms": c.conforms, "outcome": c.outcome, "detail": c.detail,
+    return {"conforms": c.conforms, "outcome": c.outcome.value, "evaluated": c.evaluated, "rule": c.rule,
+            "outcome_text": c.outcome_text, "detail": c.detail,
             "values": [_r(v) for v in c.values], "low": _r(c.low), "high": _r(c.high)}
+
+
+def _axis_json(a: AxisReading | None):
+    if a is None:
+        return None
+    return {"basis": a.basis, "deviation": _r(a.deviation), "diameter_reading": _r(a.diameter_reading),
+            "width_reading": _r(a.width_reading), "method": a.method}
 
 
 def inspection_to_json(res: InspectionResult) -> dict:
@@ -888,6 +1081,21 @@ def inspection_to_json(res: InspectionResult) -> dict:
         "axis_width_reading": None if res.axis is None else _r(res.axis.width_reading),
         "axis_method": None if res.axis is None else res.axis.method,
         "feature_axis_deviation": None if res.feature_axis is None else _r(res.feature_axis.deviation),
+        "median_line_deviation": None if res.median_axis is None else _r(res.median_axis.deviation),
+        "axis_readings": {
+            "governing": None if res.axis is None else res.axis.basis,
+            "why": res.axis_governs,
+            "feature_axis": _axis_json(res.feature_axis),
+            "median_line": _axis_json(res.median_axis),
+            "not_governing_check": _check_json(res.other_axis_check),
+        },
+        "verdict": None if res.verdict is None else {
+            "outcome": None if res.verdict.outcome is None else res.verdict.outcome.value,
+            "word": res.verdict.word, "headline": res.verdict.headline,
+            "governing_checks": list(res.verdict.governing), "why": res.verdict.why,
+            "notes": list(res.verdict.notes),
+        },
+        "section_increases": None if res.section_increases is None else [_r(v) for v in res.section_increases],
         "bonus_basis": res.bonus_basis,
         "bonus": _r(res.bonus),
         "tolerance_allowed": _r(res.tolerance_allowed),
@@ -931,10 +1139,6 @@ def inspection_to_json(res: InspectionResult) -> dict:
     }
 
 
-def _word(c: Check) -> str:
-    return {True: "CONFORMS", False: "FAILS", None: "n/a"}[c.conforms]
-
-
 def render_inspection(res: InspectionResult, title: str = "") -> str:
     """Readable summary of an inspection (what ``matezone inspect`` prints, without the caution)."""
     from .readout import STANDARD_NAME, feature_heading
@@ -976,34 +1180,46 @@ def render_inspection(res: InspectionResult, title: str = "") -> str:
                 f"   axis at A ({fmt(e.point[0])}, {fmt(e.point[1])}), tilt {e.tilt_deg:.5f} deg; {e.constraint}")
             out.append(f"  {e.name:<{w}}  ⌀{fmt(e.diameter)}{ax}")
         out.append("")
-    if res.axis is not None:
-        a = res.axis
-        out.append("axis")
-        out.append(f"  {a.method}")
-        parts = []
-        if a.diameter_reading is not None:
-            parts.append(f"⌀ reading {fmt(a.diameter_reading)}")
-        if a.width_reading is not None:
-            parts.append(f"width reading {fmt(a.width_reading)}")
+    readings = [a for a in (res.axis, res.median_axis if res.median_axis is not res.axis else None,
+                            res.feature_axis if res.feature_axis is not res.axis else None) if a is not None]
+    if readings:
+        out.append("axis readings")
         zone = f.tolerance.zone.value if f.tolerance else ""
-        out.append(f"  {', '.join(parts)}; the tolerance's {zone} zone uses {fmt(a.deviation)}")
-        fa = res.feature_axis
-        if fa is not None and fa.deviation is not None:
-            out.append(f"  beside it, {fa.method}: {zone} zone {fmt(fa.deviation)} (shown, not used for the verdict)")
+        for a in readings:
+            parts = []
+            if a.diameter_reading is not None:
+                parts.append(f"⌀ reading {fmt(a.diameter_reading)}")
+            if a.width_reading is not None:
+                parts.append(f"width reading {fmt(a.width_reading)}")
+            role = "GOVERNS" if a is res.axis else "shown, does not govern"
+            out.append(f"  {a.basis} ({role}): {a.method}")
+            out.append(f"    {', '.join(parts)}; the tolerance's {zone} zone uses {fmt(a.deviation)}")
+        if res.axis_governs:
+            out.append(f"  why: {res.axis_governs}")
         out.append("")
     if res.formulas:
-        out.append(f"bonus basis: {res.bonus_basis} envelope"
-                   + (" (ASME Y14.5-2009 and later, from memory)" if res.bonus_basis == "unrelated" else
-                      " (datum-related; option)"))
+        B = term("bonus", res.standard)[0]
+        out.append(f"{B} basis: {res.bonus_basis} envelope"
+                   + (" (the default)" if res.bonus_basis == "unrelated" else " (datum-related; option)"))
         out += [f"  {x}" for x in res.formulas]
         out.append("")
     dec = (f"U = {fmt(res.uncertainty)} (k = 2), ISO 14253-1 decision rule" if res.uncertainty is not None
            else "no uncertainty U given: decided on the measured values alone")
-    out.append(f"verdicts ({dec})")
+    out.append(f"readings ({dec})")
     for c in (res.size_check, res.axis_check, res.surface_check):
-        out.append(f"  {c.name:<8} {_word(c):<9} {c.detail}   [{c.outcome}]")
-    if res.envelope_check is not None and res.size_check.conforms is not None:
-        out.append(f"           size = {res.local_check.name} and {res.envelope_check.name}")
+        gov = "*" if res.verdict is not None and c.name in res.verdict.governing else " "
+        out.append(f"  {gov}{c.name:<8} {verdict_word(c)[0]:<16} {c.detail}   [{c.outcome_text}]")
+    if res.other_axis_check is not None:
+        c = res.other_axis_check
+        out.append(f"   {'':<8} {verdict_word(c)[0]:<16} {c.detail}   [{c.outcome_text}; does not govern]")
+    if res.envelope_check is not None and res.size_check.evaluated:
+        out.append(f"            size = {res.local_check.name} and {res.envelope_check.name}")
+    if res.verdict is not None:
+        v = res.verdict
+        out.append(f"  (* governs: {v.why})")
+        out.append("")
+        out.append(f"VERDICT: {v.headline}")
+        out += [f"  note: {n}" for n in v.notes]
     out.append("")
     ls = res.least_squares
     if ls is not None:
@@ -1012,8 +1228,9 @@ def render_inspection(res: InspectionResult, title: str = "") -> str:
                    f"⌀{fmt(res.unrelated_ame)}; {'within' if ls.size_conforms else 'outside'} the limits")
         out += [f"  {x}" for x in ls.formulas[1:]]
         if ls.axis_conforms is not None:
-            out.append(f"  LS axis verdict: {'CONFORMS' if ls.axis_conforms else 'FAILS'} "
-                       f"({fmt(ls.axis_deviation)} {'<=' if ls.axis_conforms else '>'} {fmt(ls.tolerance_allowed)})")
+            a, b = u.fmt_cmp(ls.axis_deviation, ls.tolerance_allowed)
+            out.append(f"  LS axis reading: {'within' if ls.axis_conforms else 'beyond'} the tolerance allowed "
+                       f"({a} {'<=' if ls.axis_conforms else '>'} {b}); not a verdict")
         out.append("")
     for e in res.explanation:
         out.append(e)

@@ -63,12 +63,62 @@ class Units(str, Enum):
         """Usual reporting precision: mm to 3 decimals, inch to 4 (common practice, no source)."""
         return 3 if self is Units.MM else 4
 
+    def digits(self, value: float) -> int:
+        """Decimals that show ``value`` without hiding it.
+
+        The usual precision, unless that would change the number: a value with a few more
+        decimals (a typed 0.00015 in, a derived 7.9845 mm) is shown in full, up to three more
+        decimals; a longer (measured) non-zero value that would print as zero gets two
+        significant digits.
+
+        >>> Units.IN.digits(0.00015), Units.MM.digits(7.9845), Units.MM.digits(8.0)
+        (5, 4, 3)
+        >>> Units.MM.digits(0.0213471), Units.MM.digits(0.0003127)
+        (3, 5)
+        """
+        d = self.decimals
+        v = round(float(value), 9)
+        for k in range(d, d + 4):
+            if abs(round(v, k) - v) <= 5e-10:
+                return k
+        if round(v, d) == 0.0 and v != 0.0:
+            return min(9, d + max(1, -math.floor(math.log10(abs(v))) + 1 - d))
+        return d
+
     def fmt(self, value: float | None, signed: bool = False) -> str:
-        """Format a length at the units' usual precision ("-" for None)."""
+        """Format a length at the units' usual precision, or with the digits it needs not to be
+        hidden (:meth:`digits`); "-" for None.
+
+        >>> Units.MM.fmt(7.985), Units.IN.fmt(0.00015), Units.MM.fmt(-0.0)
+        ('7.985', '0.00015', '0.000')
+        """
         if value is None:
             return "-"
-        v = round(value, self.decimals) + 0.0  # drop negative zero
-        return f"{v:+.{self.decimals}f}" if signed else f"{v:.{self.decimals}f}"
+        k = self.digits(value)
+        v = round(value, k) + 0.0  # drop negative zero
+        return f"{v:+.{k}f}" if signed else f"{v:.{k}f}"
+
+    def fmt_cmp(self, *values: float) -> tuple[str, ...]:
+        """Format numbers that are compared with each other, with the same decimals, enough to
+        keep unequal numbers from printing equal (a reading of 0.0183 against a limit of 0.018
+        prints ``0.0183`` and ``0.0180``, never ``0.018`` twice).
+
+        >>> Units.MM.fmt_cmp(0.0183, 0.018)
+        ('0.0183', '0.0180')
+        >>> Units.MM.fmt_cmp(0.012, 0.018)
+        ('0.012', '0.018')
+        """
+        vals = [float(v) for v in values]
+        k = max([self.digits(v) for v in vals] or [self.decimals])
+        top = max(k, self.decimals + 3)
+        while k < top:
+            shown = [round(v, k) for v in vals]
+            clash = any(shown[i] == shown[j] and abs(vals[i] - vals[j]) > 5e-10
+                        for i in range(len(vals)) for j in range(i + 1, len(vals)))
+            if not clash:
+                break
+            k += 1
+        return tuple(f"{round(v, k) + 0.0:.{k}f}" for v in vals)
 
 
 @dataclass(frozen=True)
@@ -224,3 +274,38 @@ def axis_direction(tol: Tolerance | None) -> tuple[float, float, float]:
         a = math.radians(tol.angle)
         return (math.cos(a), 0.0, math.sin(a))
     return (0.0, 0.0, 1.0)
+
+
+def datum_problem(tol: Tolerance | None) -> str | None:
+    """Why the datums referenced cannot do what the tolerance needs, or None.
+
+    Datum A is a plane: it orients (an axis normal or parallel to it, or at a basic angle) but
+    locates nothing in x and y, and it does not fix a direction about its own normal. So
+    (ASME Y14.5 and ISO 5459 degrees of freedom of a datum reference frame, common practice):
+
+    - position needs datums beyond A to locate the axis (e.g. A | B | C, or A | B with B a
+      feature of size);
+    - a width zone (two parallel planes) needs a datum beyond A to fix the planes' direction;
+    - angularity and parallelism of an axis need a datum beyond A to fix the direction the axis
+      leans in (A fixes only the angle to itself).
+
+    >>> datum_problem(Tolerance(Characteristic.POSITION, 0.1, datums=("A",)))[:40]
+    'position to datum A alone leaves the axi'
+    >>> datum_problem(Tolerance(Characteristic.PERPENDICULARITY, 0.1, datums=("A",))) is None
+    True
+    """
+    if tol is None or tol.characteristic is Characteristic.STRAIGHTNESS or len(tol.datums) > 1:
+        return None
+    ch = tol.characteristic
+    if ch is Characteristic.POSITION:
+        return ("position to datum A alone leaves the axis unlocated in x and y (a plane orients, it "
+                "does not locate); reference the datums that locate it, e.g. datums = [\"A\", \"B\", \"C\"], "
+                "or use perpendicularity to A to control orientation only")
+    if tol.zone is Zone.WIDTH:
+        return (f"a width zone (two parallel planes) for {ch.value} to datum A alone has no fixed direction "
+                "(it may turn about A's normal); add the datum that orients it, e.g. datums = [\"A\", \"B\"], "
+                "or use a diameter zone")
+    if ch in (Characteristic.ANGULARITY, Characteristic.PARALLELISM):
+        return (f"{ch.value} of an axis to datum A alone fixes its angle to A but not the direction it runs "
+                "in; add the datum that orients it, e.g. datums = [\"A\", \"B\"]")
+    return None

@@ -38,8 +38,14 @@ def feature_rows(r: FeatureResult, units: Units, standard: Standard) -> list[tup
                      r.virtual_condition.formula(units, standard)))
         rows.append((term("rc", standard)[1], units.fmt(r.resultant_condition.value),
                      r.resultant_condition.formula(units, standard)))
-    rows.append((term("inner", standard)[1], units.fmt(r.inner_boundary.value), r.inner_boundary.formula(units, standard)))
-    rows.append((term("outer", standard)[1], units.fmt(r.outer_boundary.value), r.outer_boundary.formula(units, standard)))
+    proj = " (within the projected height)" if tol is not None and tol.projected else ""
+    rows.append((term("inner", standard)[1] + proj, units.fmt(r.inner_boundary.value),
+                 r.inner_boundary.formula(units, standard)))
+    rows.append((term("outer", standard)[1] + proj, units.fmt(r.outer_boundary.value),
+                 r.outer_boundary.formula(units, standard)))
+    if r.in_hole_boundary is not None:
+        rows.append((term("inner", standard)[1] + " within the hole's own length (a mate uses it)",
+                     units.fmt(r.in_hole_boundary.value), r.in_hole_boundary.formula(units, standard)))
     if r.tilt_max_deg is not None:
         tmax = max(r.tolerance_at_mmc.value, r.tolerance_at_lmc.value)
         where = "projected height" if f.tolerance.projected else "length"

@@ -36,6 +36,7 @@ from .model import (
     Units,
     Zone,
     axis_direction,
+    datum_problem,
 )
 
 TOP_KEYS = ("title", "units", "standard", "feature", "mate", "fastener", "report")
@@ -170,7 +171,11 @@ def _tolerance(c: _Ctx, v, path) -> Tolerance:
             c.fail(_join(path, "angle"), f"expected a basic angle between 0 and 90 degrees (exclusive), got {angle:g}")
     elif "angle" in v:
         c.fail(_join(path, "angle"), f"expected no angle: only angularity takes a basic angle, this is {ch.value}")
-    return Tolerance(ch, value, zone, mat, tuple(datums), projected, angle)
+    tol = Tolerance(ch, value, zone, mat, tuple(datums), projected, angle)
+    why = datum_problem(tol)
+    if why:
+        c.fail(_join(path, "datums"), "expected datums that fix the zone: " + why)
+    return tol
 
 
 def _measured(c: _Ctx, v, path) -> Measured:
@@ -270,20 +275,18 @@ def _orient(f: Feature) -> str:
 def parse(data: dict, file: str = "<scene>", source: str | None = None) -> Scene:
     """Validate a decoded TOML document and build the scene."""
     c = _Ctx(file)
-    c.table(data, "", TOP_KEYS, required=("units", "feature"))
+    c.table(data, "", TOP_KEYS, required=("units",))
     title = c.string(data["title"], "title") if "title" in data else (Path(file).stem if source else "Untitled")
     units = Units(c.string(data["units"], "units", [u.value for u in Units]))
     standard = Standard(c.string(data.get("standard", "asme"), "standard", [s.value for s in Standard]))
     feats = []
     ids: dict[str, int] = {}
-    for i, fv in enumerate(c.array_of_tables(data["feature"], "feature")):
+    for i, fv in enumerate(c.array_of_tables(data.get("feature", []), "feature")):
         f = _feature(c, fv, i)
         if f.id in ids:
             c.fail(f"feature[{i}].id", f"expected a unique id, got {f.id!r} again (first at feature[{ids[f.id]}])")
         ids[f.id] = i
         feats.append(f)
-    if not feats:
-        c.fail("feature", "expected at least one [[feature]]")
     by_id = {f.id: f for f in feats}
     mates = []
     for i, mv in enumerate(c.array_of_tables(data.get("mate", []), "mate")):
@@ -313,6 +316,8 @@ def parse(data: dict, file: str = "<scene>", source: str | None = None) -> Scene
             c.fail(f"fastener[{i}].id", f"expected a unique id, got {fa.id!r} again")
         fids.add(fa.id)
         fasteners.append(fa)
+    if not feats and not fasteners:
+        c.fail("feature", "expected at least one [[feature]] or [[fastener]]")
     report = ()
     if "report" in data:
         rv = c.table(data["report"], "report", REPORT_KEYS)

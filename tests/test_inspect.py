@@ -52,7 +52,8 @@ def cylinder_points(R, L, *, nsec=9, per=240, offset=(0.0, 0.0), tilt=(0.0, 0.0)
 def scene_with(kind=Kind.HOLE, limits=(8.0, 8.03), length=12.0, char=Characteristic.PERPENDICULARITY,
                value=0.015, material=Material.MMC, zone=Zone.DIAMETER, at=(0.0, 0.0), projected=None,
                standard=Standard.ASME, measured=None):
-    datums = () if char is Characteristic.STRAIGHTNESS else ("A",)
+    datums = () if char is Characteristic.STRAIGHTNESS else (
+        ("A", "B", "C") if char is Characteristic.POSITION else ("A",))
     tol = None if char is None else Tolerance(char, value, zone, material, datums, projected)
     f = Feature("f", kind, limits, length, at, tol, measured=measured)
     return Scene("test", Units.MM, standard, (f,))

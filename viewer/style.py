@@ -35,6 +35,11 @@ NOT_PROVEN = "#8A5A00"  # inspection verdict neither proven nor disproven / not 
 ENVELOPE = "#56626E"  # unrelated actual mating envelope of a measured feature, translucent (0.12)
 ENVELOPE_RELATED = "#C77C00"  # related actual mating envelope (held to the datum), dashed wireframe (0.29)
 MEDIAN_LINE = AXIS  # derived median line (section centres) of a measured feature
+NEUTRAL = "#56626E"  # a check that was not evaluated (no colour claims a verdict)
+
+# Colour of each verdict role of geom.conformance.verdict_word (the one mapping of verdicts to
+# colours; the window uses the same roles with its own banner backgrounds).
+ROLE_COLOUR = {"ok": OK, "fail": INTERFERENCE, "unproven": NOT_PROVEN, "none": NEUTRAL}
 
 # Clearance colouring of the mating surface, from tight (0) to loose: a sequential ramp of
 # rising luminance (0.29 .. 0.91) in blue-green-cream with no red, so the interference red
