@@ -1,15 +1,23 @@
 """Judge a produced part: from inspection values typed into the scene or from measured points.
 
 For one feature of size it gives the actual mating envelopes (unrelated: any orientation;
-related: held to datum A as the tolerance requires), the derived median line and its zone
-reading, the bonus and tolerance allowed, and three verdicts, each under the ISO 14253-1
-decision rule when an expanded uncertainty U (k = 2) is given:
+related: held to datum A as the tolerance requires), both axis readings (the feature axis, i.e.
+the axis of the unrelated envelope, and the derived / extracted median line: the centres of
+sections normal to the associated least-squares axis), the bonus and tolerance allowed, and
+three readings, each with its ISO 14253-1 outcome (:mod:`geom.conformance`) when an expanded
+uncertainty U (k = 2) is given:
 
 * size: local two-point sizes within the limits and, where the envelope applies (ASME Rule #1
   or ISO (E)), the unrelated mating envelope not beyond MMC;
-* axis reading: the derived median line within the tolerance allowed (t + bonus);
-* surface reading: the related envelope does not violate the virtual condition (what a
-  functional gauge checks).
+* axis: the governing axis reading within the tolerance allowed (t + bonus). Under ASME,
+  position and orientation apply to the feature axis; the median line governs straightness
+  only. Under ISO the extracted median line governs (ISO 1101);
+* surface: the related envelope does not violate the virtual condition (what a functional
+  gauge checks).
+
+One overall verdict (:func:`geom.conformance.part_verdict`) combines the readings that govern:
+size and surface where a modifier (MMC/LMC) applies, size and axis otherwise. A reading that
+does not govern and disagrees is a labelled note.
 
 The least-squares results a CMM usually prints are carried alongside, so a reader can see why a
 gauge and a printout disagree. Definitions (ASME Y14.5-2018 §§1.3, 5.8 and Y14.5.1, from
@@ -33,10 +41,13 @@ the related AME is the same held normal to datum A (and at the true position for
 ... size = 8.004
 ... related_size = 7.990
 ... axis_deviation = 0.012
+... local_sizes = [8.005, 8.012]
 ... ''')
 >>> r = inspect_feature(sc, "b")
 >>> round(r.tolerance_allowed, 6), r.axis_conforms, r.surface_conforms, r.size_conforms
 (0.019, True, True, True)
+>>> r.verdict.headline
+'PART CONFORMS: size and surface readings conform'
 """
 
 from __future__ import annotations
@@ -242,7 +253,8 @@ def _section(xy: np.ndarray, z: float, label: str, hole: bool) -> SectionResult:
 # ---------------------------------------------------------------- axis readings
 
 
-def _axis_reading(feature: Feature, centres: np.ndarray, line_fit) -> AxisReading | None:
+def _axis_reading(feature: Feature, centres: np.ndarray, line_fit, standard: Standard = Standard.ASME
+                  ) -> AxisReading | None:
     """Zone the derived median line needs: diameter and width readings; the tolerance's own
     zone shape gives ``deviation``."""
     tol = feature.tolerance
@@ -251,7 +263,8 @@ def _axis_reading(feature: Feature, centres: np.ndarray, line_fit) -> AxisReadin
     ch = tol.characteristic
     at = np.asarray(feature.at, float)
     pts = centres
-    how = f"derived median line: least-squares centres of {len(centres)} sections"
+    dml = "extracted median line" if standard is Standard.ISO else "derived median line"
+    how = f"{dml}: least-squares centres of {len(centres)} sections (normal to the associated axis)"
     if tol.projected:
         P = tol.projected
         zz = np.array([-P, 0.0])
@@ -498,7 +511,7 @@ def _from_points(scene: Scene, feature: Feature, pc: PointCloud, bonus_basis: st
         x_lm, r_lm = F.minimax_cylinder(P, x_ls, z0, inscribed=not hole)
         lm_un = _envelope(envelope_name(std, hole, False, True), x_lm, z0, r_lm, "any orientation")
         lm_rel = _related(feature, P, x_lm, z0, not hole, envelope_name(std, hole, True, True, pos))
-    axis = _axis_reading(feature, centres, _line_through(centres, 0.0))
+    axis = _axis_reading(feature, centres, _line_through(centres, 0.0), scene.standard)
     local = (min(s.local_min for s in secs), max(s.local_max for s in secs))
     U = feature.measured.uncertainty if feature.measured else None
     if feature.measured is not None and any(
@@ -524,10 +537,11 @@ def _from_values(scene: Scene, feature: Feature, bonus_basis: str) -> Inspection
         elif m.axis_bottom is not None:
             ends = np.array([[*m.axis_bottom, 0.0], [*m.axis_top, feature.length]])
             fit = _line_through(ends, 0.0)
-            axis = _axis_reading(feature, ends, fit)
+            axis = _axis_reading(feature, ends, fit, scene.standard)
             if axis is not None:
                 axis = AxisReading(axis.deviation, axis.diameter_reading, axis.width_reading,
-                                   axis.method.replace("least-squares centres of 2 sections", "typed axis end points")
+                                   axis.method.replace("least-squares centres of 2 sections (normal to the associated axis)",
+                                                       "typed axis end points")
                                    .replace("the 2 section centres", "the typed axis end points"), axis.line)
     un = m.size
     rel = m.related_size
@@ -839,7 +853,7 @@ def _finish(scene: Scene, feature: Feature, bonus_basis: str, m: _Fit) -> Inspec
                                      f"feature axis: the axis of the {envelope_name(std, hole, False, lmc)}")
     basis, why_axis = governing_axis(feature, std) if tol is not None else ("median line", "")
     if m.source == "values":
-        governing = median
+        governing = None if median is None else replace(median, basis=basis)
         if median is not None and tol is not None and tol.characteristic is not Characteristic.STRAIGHTNESS:
             notes.append(f"the typed axis reading is taken as the {basis} reading, which governs here ({why_axis})")
     else:
@@ -863,7 +877,7 @@ def _finish(scene: Scene, feature: Feature, bonus_basis: str, m: _Fit) -> Inspec
     other_check = None
     if other is not None and other.deviation is not None and allowed is not None:
         c = decide("axis", (other.deviation,), None, allowed, U, units)
-        other_check = with_detail(c, f"{other.basis} {c.detail}", name=f"{other.basis} (not governing)")
+        other_check = with_detail(c, f"{other.basis} {c.detail}", name=f"{other.basis} (does not govern)")
 
     # ------------------------------------------------------------ surface (functional gauge)
     if tol is None:
@@ -871,9 +885,16 @@ def _finish(scene: Scene, feature: Feature, bonus_basis: str, m: _Fit) -> Inspec
     elif tol.material is Material.RFS:
         mod = term("rfs", std)[0]
         surface_check = not_evaluated("surface", f"{mod}: no virtual condition; the tolerance applies to the axis only")
+    elif tol.projected and m.points is None and governing is not None and governing.basis == "feature axis" \
+            and governing.deviation is not None and allowed is not None:
+        # typed values under ASME: the typed reading is the feature axis, the axis of the gauge pin
+        # that fits, over the projected height: the same check as the surface reading from points
+        c = decide("surface", (governing.deviation,), None, allowed, U, units)
+        surface_check = with_detail(c, f"typed feature-axis reading (the axis of the gauge pin that fits) over "
+                                       f"the projected height: {c.detail}")
     elif tol.projected:
         if un_env is None or m.points is None or allowed is None:
-            surface_check = not_evaluated("surface", "projected zone: needs points (the envelope's axis)")
+            surface_check = not_evaluated("surface", "projected zone: needs points or a typed feature-axis reading")
         else:
             r = _line_reading(feature, un_env, "feature axis", "")
             c = decide("surface", (r.deviation,), None, allowed, U, units)
@@ -934,7 +955,7 @@ def _finish(scene: Scene, feature: Feature, bonus_basis: str, m: _Fit) -> Inspec
         uncertainty=U, formulas=tuple(formulas), size_check=size_check, local_check=local_check,
         envelope_check=env_check, axis_check=axis_check, surface_check=surface_check, least_squares=m.ls,
         explanation=tuple(explanation), notes=tuple(notes), warnings=tuple(m.warnings), feature_axis=feature_axis,
-        median_axis=median, other_axis_check=other_check, axis_governs=why_axis, verdict=verdict,
+        median_axis=median if m.source == "points" else None, other_axis_check=other_check, axis_governs=why_axis, verdict=verdict,
         section_increases=None if increases is None else tuple(float(v) for v in increases))
 
 
@@ -960,6 +981,7 @@ def _explain(feature, std, units, axis_check, surface_check, sections, un_env, l
     hole = feature.kind is Kind.HOLE
     B = term("bonus", std)[0]
     tol = feature.tolerance
+    rel_word = "related envelope" if std is Standard.ASME else "orientation-constrained associated cylinder"
     if readings_disagree(axis_check, surface_check):
         form = ""
         if sections:
@@ -971,14 +993,14 @@ def _explain(feature, std, units, axis_check, surface_check, sections, un_env, l
         if not axis_check.conforms:
             out.append(
                 f"The axis and surface readings disagree: the {basis} needs more zone than t + {B} "
-                f"({axis_check.detail}), yet the related envelope clears the {term('vc_MMC', std)[0] if tol.material is Material.MMC else term('vc_LMC', std)[0]} "
+                f"({axis_check.detail}), yet the {rel_word} clears the {term('vc_MMC', std)[0] if tol.material is Material.MMC else term('vc_LMC', std)[0]} "
                 f"({surface_check.detail}). The {B} is taken from the {'narrowest' if hole else 'widest'} "
-                "place (the envelope), while the axis follows the form error; a functional gauge "
+                f"place ({'the envelope' if std is Standard.ASME else 'the associated cylinder'}), while the axis follows the form error; a functional gauge "
                 "feels only the surface." + form)
         else:
             out.append(
                 f"The axis and surface readings disagree: the {basis} stays within t + {B} "
-                f"({axis_check.detail}), yet the related envelope violates the boundary "
+                f"({axis_check.detail}), yet the {rel_word} violates the boundary "
                 f"({surface_check.detail}). Form error (bend, lobing, taper) narrows the datum-held "
                 "envelope more than the axis shows." + form)
         out.append(GOVERNS_ASME if std is Standard.ASME else GOVERNS_ISO)
@@ -995,12 +1017,14 @@ def _explain(feature, std, units, axis_check, surface_check, sections, un_env, l
                 f"{tol.characteristic.value} applies to the feature axis ({axis_check.detail}).")
         else:
             out.append(
-                f"The feature axis (axis of the envelope) would say the axis "
+                f"The feature axis (axis of the unconstrained associated cylinder) would say the axis "
                 f"{'conforms' if other_check.conforms else 'does not conform'} ({other_check.detail}); under ISO 1101 "
                 f"the extracted median line governs ({axis_check.detail}).")
     if ls is not None and ls.axis_conforms is not None and axis_check.conforms is not None:
         env_word = ("mating" if tol.material is not Material.LMC else "minimum material") if std is Standard.ASME \
-            else "associated"
+            else "associated cylinder"
+        if std is Standard.ASME:
+            env_word += " envelope"
         if ls.axis_conforms != axis_check.conforms or (surface_check.conforms is not None
                                                       and ls.axis_conforms != surface_check.conforms):
             env_d = None if un_env is None else un_env.diameter
@@ -1009,7 +1033,7 @@ def _explain(feature, std, units, axis_check, surface_check, sections, un_env, l
             out.append(
                 f"A least-squares printout would say the axis {'conforms' if ls.axis_conforms else 'does not conform'}: "
                 f"it takes the {B} from {src} {units.fmt(ls.size)} (an average through the form "
-                f"error) instead of the {env_word} envelope {units.fmt(env_d)}, giving tolerance allowed "
+                f"error) instead of the {env_word} {units.fmt(env_d)}, giving tolerance allowed "
                 f"{units.fmt(ls.tolerance_allowed)} against {units.fmt(allowed)}"
                 + _axis_difference(ls.axis_deviation, None if governing is None else governing.deviation, units)
                 + ". That is why a gauge and a CMM printout can disagree.")
@@ -1199,7 +1223,8 @@ def render_inspection(res: InspectionResult, title: str = "") -> str:
         out.append("")
     if res.formulas:
         B = term("bonus", res.standard)[0]
-        out.append(f"{B} basis: {res.bonus_basis} envelope"
+        env = "envelope" if res.standard is Standard.ASME else "associated cylinder"
+        out.append(f"{B} basis: {res.bonus_basis} {env}"
                    + (" (the default)" if res.bonus_basis == "unrelated" else " (datum-related; option)"))
         out += [f"  {x}" for x in res.formulas]
         out.append("")
@@ -1224,7 +1249,7 @@ def render_inspection(res: InspectionResult, title: str = "") -> str:
     ls = res.least_squares
     if ls is not None:
         out.append("least squares (the usual CMM default), side by side")
-        out.append(f"  size: LS ⌀{fmt(ls.size)} vs {'mating' if res.unrelated else ''} envelope "
+        out.append(f"  size: LS ⌀{fmt(ls.size)} vs {'mating envelope' if res.standard is Standard.ASME else 'associated cylinder'} "
                    f"⌀{fmt(res.unrelated_ame)}; {'within' if ls.size_conforms else 'outside'} the limits")
         out += [f"  {x}" for x in ls.formulas[1:]]
         if ls.axis_conforms is not None:

@@ -5,8 +5,9 @@ The bore (limits 8.000 - 8.022 mm, length 12, perpendicularity ⌀0.015 (M) to A
 half on one side: one wall stays straight, the other moves out 0.015 mm at the top face, so the
 size grows from ⌀8.005 to ⌀8.020 while the section centres drift 0.0075 mm more than the tilt.
 Three-lobed form (0.0005 mm) and probe noise (0.00015 mm) are added.
-The derived median line then needs more zone than t + bonus (axis reading fails) while a gauge
-pin of the virtual condition still enters normal to A (surface reading passes).
+The derived median line (section centres) then needs more zone than t + bonus, while the axis
+of the unrelated actual mating envelope (the feature axis, which ASME applies perpendicularity
+to) stays within it and a gauge pin of the virtual condition still enters normal to A.
 
 Seeded and deterministic: running it twice writes the same file.
 

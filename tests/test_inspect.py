@@ -16,6 +16,7 @@ import numpy as np
 import pytest
 
 from geom import fitting as F
+from geom.conformance import Outcome, verdict_word
 from geom.inspect import decide, inspect_feature, inspection_to_json, render_inspection
 from geom.model import Characteristic, Feature, Kind, Material, Measured, Scene, Standard, Tolerance, Units, Zone
 
@@ -265,21 +266,43 @@ def test_related_envelope_matches_voronoi_of_projection():
 
 def test_tapered_tilted_hole_axis_fails_surface_passes():
     # a hole 8.002 at A opening to 8.014 at the top (taper), tilted 0.022 over 12: the bonus
-    # comes from the narrow end (unrelated AME ~ 8.002), the axis uses 0.022 > 0.017, yet the
-    # taper leaves room for a VC pin normal to A. Which governs: ASME Y14.5-2009 §7.3.3.1
-    # (surface interpretation takes precedence, from memory).
+    # comes from the narrow end (unrelated AME ~ 8.002), the section centres need 0.022 > 0.017,
+    # yet the taper leaves room for a VC pin normal to A. Under ISO the extracted median line
+    # governs the axis reading (ISO 1101, from memory); with (M) the surface (MMVS) governs the
+    # part (ISO 2692, from memory), so the part conforms with a labelled disagreement.
     P = cylinder_points(4.001, 12.0, nsec=13, per=360, tilt=(0.022 / 12, 0.0), taper=0.0005)
-    sc = scene_with(limits=(8.0, 8.022))
+    sc = scene_with(limits=(8.0, 8.022), standard=Standard.ISO)
     r = inspect_feature(sc, "f", points=P)
     assert r.unrelated_ame == pytest.approx(8.002, abs=1e-6)  # narrow end (exact data, taper)
     assert r.tolerance_allowed == pytest.approx(0.015 + 0.002, abs=1e-6)  # t + (AME - MMC)
-    assert r.axis_deviation == pytest.approx(0.022, abs=1e-9)
+    assert r.axis.basis == "median line"
+    # centres of sections normal to the LS axis of a tilted cone: on a line within 1e-5 of the
+    # 0.022 tilt (the sections' normal plane is tilted by 0.1 degree; exact data)
+    assert r.axis_deviation == pytest.approx(0.022, abs=1e-5)
     assert r.axis_conforms is False
-    assert r.related_ame > 7.985  # VC = MMC - t = 8.000 - 0.015 (ASME Y14.5-2018 §1.3, from memory)
+    assert r.related_ame > 7.985  # MMVS = MMS - t = 8.000 - 0.015 (ISO 2692, from memory)
     assert r.surface_conforms is True
     assert r.size_conforms is True
-    assert any("§7.3.3.1" in e and "from memory" in e for e in r.explanation)
-    assert any("disagree" in e for e in r.explanation)
+    assert r.verdict.outcome is Outcome.CONFORMS and r.verdict.governing == ("size", "surface")
+    assert any("disagree" in n for n in r.verdict.notes)
+    assert not any("from memory" in e or "§" in e for e in r.explanation)
+
+
+def test_asme_feature_axis_governs_position_and_orientation():
+    # ASME Y14.5 (definitions of feature axis and derived median line, from memory): orientation
+    # and position of a feature of size apply to the axis of the unrelated actual mating envelope.
+    # The same tapered, tilted hole as above under ASME: the governing reading is the envelope's
+    # axis, computed here independently as the axis through the envelope's two end points.
+    P = cylinder_points(4.001, 12.0, nsec=13, per=360, tilt=(0.022 / 12, 0.0), taper=0.0005)
+    r = inspect_feature(scene_with(limits=(8.0, 8.022)), "f", points=P)
+    assert r.axis.basis == "feature axis" and r.axis is r.feature_axis
+    e = r.unrelated
+    ends = np.array([e.at_z(0.0), e.at_z(12.0)])
+    # perpendicularity, diameter zone: smallest circle holding the axis ends projected on A =
+    # their distance (two points; ASME Y14.5.1 axis perpendicularity, from memory)
+    assert r.axis_deviation == pytest.approx(float(np.hypot(*(ends[1] - ends[0]))), abs=1e-9)
+    assert r.median_axis.deviation == pytest.approx(0.022, abs=1e-5)  # the section centres, shown
+    assert r.other_axis_check is not None and "does not govern" in r.other_axis_check.name
 
 
 def test_bonus_basis_related_is_reported_and_used():
@@ -306,27 +329,30 @@ def test_lmc_hole_takes_bonus_from_minimum_material_envelope():
 # ---------------------------------------------------------------- decision rule
 
 
-@pytest.mark.parametrize("value,outcome", [
-    (0.010, "conformance proven"),      # 0.010 <= 0.015 - 0.002
-    (0.014, "not proven either way (within U of a limit)"),
-    (0.016, "not proven either way (within U of a limit)"),
-    (0.018, "nonconformance proven"),   # 0.018 > 0.015 + 0.002
+@pytest.mark.parametrize("value,outcome,proven", [
+    (0.010, Outcome.CONFORMS, True),      # 0.010 <= 0.015 - 0.002
+    (0.014, Outcome.NOT_PROVEN, None),    # within U of the limit, inside it
+    (0.016, Outcome.NOT_PROVEN, None),    # within U of the limit, outside it
+    (0.018, Outcome.NONCONFORMS, False),  # 0.018 > 0.015 + 0.002
 ])
-def test_iso_14253_decision_rule(value, outcome):
+def test_iso_14253_decision_rule(value, outcome, proven):
     # ISO 14253-1 (from memory): conformance inside the zone shrunk by U, nonconformance outside
-    # the zone grown by U
+    # the zone grown by U, neither in between: three outcomes, never a boolean
     c = decide("axis", (value,), None, 0.015, 0.002)
-    assert c.outcome == outcome
-    assert c.conforms is (value <= 0.015)
+    assert c.outcome is outcome
+    assert c.conforms is proven  # True / False only where proven
+    assert c.inside is (value <= 0.015)  # the measured value alone, for information
+    assert verdict_word(c)[0] == {True: "CONFORMS", False: "DOES NOT CONFORM", None: "NOT PROVEN"}[proven]
 
 
 def test_uncertainty_from_scene_reaches_the_verdicts():
     P = cylinder_points(4.001, 12.0, tilt=(0.0165 / 12, 0.0))
     sc = scene_with(measured=Measured(uncertainty=0.001))
     r = inspect_feature(sc, "f", points=P)
-    # allowed = 0.015 + 0.002 = 0.017; deviation 0.0165 lies within U of it
-    assert r.axis_conforms is True
-    assert r.axis_check.outcome.startswith("not proven")
+    # allowed = 0.015 + 0.002 = 0.017; deviation 0.0165 lies within U of it: not proven
+    # (ISO 14253-1, from memory), so neither "conforms" nor "fails" is claimed
+    assert r.axis_conforms is None
+    assert r.axis_check.outcome is Outcome.NOT_PROVEN and r.axis_check.inside is True
 
 
 # ---------------------------------------------------------------- typed values
