@@ -363,8 +363,9 @@ def analyse_mate(hole: FeatureResult, pin: FeatureResult) -> MateResult:
     pd = pt.datums if pt is not None else ()
     extra = sorted(set(hd[1:]) | set(pd[1:]))
     if extra:
-        assumptions.append(f"datum features {', '.join(extra)} of the two parts coincide in assembly "
-                           "(or the parts are free to float on A so the pin finds the hole)")
+        what = (f"datum feature {extra[0]} of the two parts coincides" if len(extra) == 1 else
+                f"datum features {', '.join(extra)} of the two parts coincide")
+        assumptions.append(f"{what} in assembly (or the parts are free to float on A so the pin finds the hole)")
     if pt is not None and pt.projected:
         assumptions.append(f"the hole engages the pin within its projected height ({pt.projected:g})")
     return MateResult(

@@ -70,7 +70,7 @@ from .boundaries import virtual_condition
 from .model import (
     Characteristic, Feature, Kind, Material, Scene, Standard, Units, Zone, datum_problem, envelope_applies,
 )
-from .pointsfile import PointCloud, read_points
+from .pointsfile import PointCloud, PointsError, read_points
 
 SLACK = 1e-9  # numeric slack when comparing with a limit (scene units)
 BONUS_BASES = ("unrelated", "related")
@@ -367,9 +367,18 @@ def _load_points(scene: Scene, feature: Feature, points, sections) -> PointCloud
         m = feature.measured
         if m is None or m.points is None:
             return None
-        base = Path(scene.source).parent if scene.source else Path.cwd()
+        base = (Path(scene.source).parent if scene.source else Path.cwd()).resolve()
         path = Path(m.points)
-        return read_points(path if path.is_absolute() else base / path)
+        full = (path if path.is_absolute() else base / path).resolve()
+        where = f'{scene.source or "scene"}: feature "{feature.id}".measured.points'
+        if not full.is_relative_to(base):
+            # a scene must not make the program read (and echo lines of) an arbitrary file
+            raise InspectError(f"{where}: expected a CSV file inside the scene's folder {base}, got "
+                               f"{m.points!r}; give a file elsewhere explicitly with --points")
+        try:
+            return read_points(full)
+        except PointsError as e:
+            raise InspectError(f"{where}: {e}") from None
     if isinstance(points, PointCloud):
         return points
     if isinstance(points, (str, os.PathLike)):
@@ -451,7 +460,7 @@ def _from_points(scene: Scene, feature: Feature, pc: PointCloud, bonus_basis: st
                 "around the feature's basic location")
     # a first least-squares line through the centres of the rings as measured starts the fits
     try:
-        rough = np.array([[*F.ls_circle(P[g, :2])[:2], z] for g, z in zip(groups, zs)])
+        rough = np.array([[*F.ls_circle(P[g, :2], iterations=4)[:2], z] for g, z in zip(groups, zs)])
     except F.FitError as e:
         raise InspectError(f"{file}: {e}") from None
     z0 = float(P[:, 2].mean())

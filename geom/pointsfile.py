@@ -16,15 +16,24 @@ from __future__ import annotations
 import io
 import math
 import os
+import re
 import warnings
 from dataclasses import dataclass
 
 import numpy as np
 
-from .textfile import read_text
+from .textfile import MAX_POINTS_BYTES, read_text, text_problem
 
 COLUMNS = ("x", "y", "z")
 SECTION = "section"
+MAX_COORDINATE = 1e6  # largest coordinate accepted (scene units)
+# a plain decimal number in ASCII: no digit separators ("4_0"), no full-width or other digits
+_NUMBER = re.compile(r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?\Z", re.ASCII)
+
+
+def _cell(text: str, n: int = 40) -> str:
+    """A cell or line as shown in a message: quoted, at most ``n`` characters."""
+    return repr(text) if len(text) <= n else repr(text[: n - 1] + "…")
 
 
 class PointsError(ValueError):
@@ -64,7 +73,7 @@ def _header(first: str, file: str) -> tuple[list[str], dict[str, int]]:
         except ValueError:
             pass
         raise PointsError(file, f"header: missing column {', '.join(repr(m) for m in missing)}; "
-                                f"expected x,y,z and optionally section, got {first.strip()!r}", 1)
+                                f"expected x,y,z and optionally section, got {_cell(first.strip(), 60)}", 1)
     return names, idx
 
 
@@ -82,12 +91,14 @@ def _slow_parse(lines: list[str], file: str, names: list[str], idx: dict[str, in
         row = []
         for k in COLUMNS:
             cell = cells[idx[k]]
-            try:
-                v = float(cell)
-            except ValueError:
-                raise PointsError(file, f"column {k!r}: expected a number, got {cell!r}", no) from None
-            if not math.isfinite(v):
-                raise PointsError(file, f"column {k!r}: expected a finite number, got {cell!r}", no)
+            if not _NUMBER.match(cell):
+                what = "a finite number" if cell.lower().lstrip("+-") in ("nan", "inf", "infinity") else "a number"
+                raise PointsError(file, f"column {k!r}: expected {what} (plain digits, '.', e), got {_cell(cell)}",
+                                  no)
+            v = float(cell)
+            if not math.isfinite(v) or abs(v) > MAX_COORDINATE:
+                raise PointsError(file, f"column {k!r}: expected a coordinate of magnitude at most "
+                                        f"{MAX_COORDINATE:g}, got {_cell(cell)}", no)
             row.append(v)
         xyz.append(row)
         nos.append(no)
@@ -96,7 +107,10 @@ def _slow_parse(lines: list[str], file: str, names: list[str], idx: dict[str, in
             if not cell:
                 raise PointsError(file, "column 'section': expected a label, got an empty cell", no)
             if cell.lower().lstrip("+-") in ("nan", "inf", "infinity"):
-                raise PointsError(file, f"column 'section': expected a label (a number or a name), got {cell!r}", no)
+                raise PointsError(file, f"column 'section': expected a label (a number or a name), got {_cell(cell)}", no)
+            why = text_problem(cell, "a section label", 40)
+            if why:
+                raise PointsError(file, f"column 'section': {why}", no)
             secs.append(cell)
     if not xyz:
         raise PointsError(file, "no points: expected rows of x,y,z after the header")
@@ -113,6 +127,8 @@ def parse_points(src, file: str = "<points>") -> PointCloud:
     """Read points from a text stream (fast path: :func:`numpy.loadtxt`; on any problem the file
     is read again line by line to name the bad line)."""
     text = src.read()
+    if "\r" in text:  # Windows (CR LF) and old Mac (CR only) line endings
+        text = text.replace("\r\n", "\n").replace("\r", "\n")
     stripped = text.lstrip()
     if not stripped:
         raise PointsError(file, "empty file: expected a header row x,y,z[,section] and points")
@@ -127,7 +143,11 @@ def parse_points(src, file: str = "<points>") -> PointCloud:
                              ndmin=2, comments="#")
     except ValueError:
         return _slow_parse(text.splitlines()[first_i:], file, names, idx, first_i)
-    if arr.shape[0] == 0 or arr.shape[1] != len(cols) or not np.isfinite(arr).all():
+    if arr.shape[0] == 0 or arr.shape[1] != len(cols) or not np.isfinite(arr).all() \
+            or np.abs(arr[:, :3]).max() > MAX_COORDINATE:
+        return _slow_parse(text.splitlines()[first_i:], file, names, idx, first_i)
+    if any(ch in text for ch in "_") or not text.isascii():
+        # loadtxt takes Python's float(), which reads "4_0" and non-ASCII digits: check strictly
         return _slow_parse(text.splitlines()[first_i:], file, names, idx, first_i)
     # loadtxt ignores surplus columns; a long row must still be an error: count the commas
     # (cheap), and on any mismatch let the line-by-line parse find the line
@@ -144,7 +164,7 @@ def read_points(path: str | os.PathLike) -> PointCloud:
     def fail(message: str):
         raise PointsError(str(path), message)
 
-    text = read_text(path, "a .csv file of points", fail)
+    text = read_text(path, "a .csv file of points", fail, MAX_POINTS_BYTES)
     return parse_points(io.StringIO(text), str(path))
 
 

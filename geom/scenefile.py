@@ -21,7 +21,7 @@ import tomllib
 from pathlib import Path
 from typing import Any
 
-from .textfile import read_text
+from .textfile import file_slug, read_text, text_problem
 from .model import (
     Characteristic,
     Fastener,
@@ -48,6 +48,11 @@ MATE_KEYS = ("hole", "pin")
 FASTENER_KEYS = ("id", "kind", "fastener", "hole", "thread_depth", "projection")
 REPORT_KEYS = ("part", "revision", "part_name", "lot", "serial", "quantity", "report_number",
                "requirement", "drawing_zone", "found_by", "prepared_by", "date", "supplier", "remarks")
+
+
+MAX_MAGNITUDE = 1e6  # largest length, location or tolerance accepted (scene units): 1 km in mm
+MIN_LENGTH = 1e-6  # smallest size or length accepted (scene units)
+MAX_ID = 64  # characters of an id
 
 
 class SceneError(ValueError):
@@ -79,9 +84,12 @@ class _Ctx:
                 self.fail(_join(path, k), "missing; this key is required")
         return v
 
-    def string(self, v, path, choices=None):
+    def string(self, v, path, choices=None, what="a text", max_len=200, newlines=False):
         if not isinstance(v, str) or not v.strip():
             self.fail(path, f"expected a non-empty string, got {_show(v)}")
+        why = text_problem(v, what, max_len, newlines)
+        if why:
+            self.fail(path, why)
         if choices is not None and v not in choices:
             near = difflib.get_close_matches(v, choices, n=1)
             hint = f" (did you mean {near[0]!r}?)" if near else ""
@@ -97,8 +105,12 @@ class _Ctx:
             self.fail(path, f"expected a number of sensible size, got an integer with {len(str(v))} digits")
         if not math.isfinite(v):
             self.fail(path, f"expected a finite number, got {v}")
+        if abs(v) > MAX_MAGNITUDE:
+            self.fail(path, f"expected a number of magnitude at most {MAX_MAGNITUDE:g} (scene units), got {v:g}")
         if positive and v <= 0:
             self.fail(path, f"expected a number > 0, got {v:g}")
+        if positive and v < MIN_LENGTH:
+            self.fail(path, f"expected a length of at least {MIN_LENGTH:g} (scene units), got {v:g}")
         if nonneg and v < 0:
             self.fail(path, f"expected a number >= 0, got {v:g}")
         return v
@@ -116,6 +128,12 @@ class _Ctx:
         return v
 
 
+def _short(text: str, n: int = 160) -> str:
+    """One line of at most ``n`` characters (a message never echoes a whole file)."""
+    text = " ".join(text.split())
+    return text if len(text) <= n else text[: n - 1] + "…"
+
+
 def _join(path: str, key: str) -> str:
     return f"{path}.{key}" if path else key
 
@@ -124,7 +142,7 @@ def _show(v: Any) -> str:
     if isinstance(v, bool):
         return f"the boolean {str(v).lower()}"
     if isinstance(v, str):
-        return f"the string {v!r}"
+        return f"the string {_short(repr(v), 80)}"
     if isinstance(v, (int, float)):
         return f"the number {v!r}"
     if isinstance(v, list):
@@ -146,7 +164,8 @@ def _tolerance(c: _Ctx, v, path) -> Tolerance:
     if value == 0 and mat is Material.RFS:
         c.fail(_join(path, "value"), "expected a number > 0: a zero tolerance needs material = \"MMC\" or \"LMC\"")
     datums = v.get("datums", [])
-    if not isinstance(datums, list) or not all(isinstance(d, str) and d.strip() for d in datums):
+    if not isinstance(datums, list) or not all(isinstance(d, str) and d.strip() and len(d) <= 8
+                                               and text_problem(d, "a datum", 8) is None for d in datums):
         c.fail(_join(path, "datums"), f"expected a list of datum letters such as [\"A\"], got {_show(datums)}")
     if len(set(datums)) != len(datums):
         c.fail(_join(path, "datums"), "expected each datum once, got a repeated letter")
@@ -205,7 +224,7 @@ def _measured(c: _Ctx, v, path) -> Measured:
 def _feature(c: _Ctx, v, i: int) -> Feature:
     path = f"feature[{i}]"
     c.table(v, path, FEATURE_KEYS, required=("id", "kind", "limits", "length"))
-    fid = c.string(v["id"], _join(path, "id"))
+    fid = c.string(v["id"], _join(path, "id"), what="an id", max_len=MAX_ID)
     path = f'feature[{i}] "{fid}"'
     kind = Kind(c.string(v["kind"], _join(path, "kind"), [x.value for x in Kind]))
     lim = v["limits"]
@@ -218,7 +237,7 @@ def _feature(c: _Ctx, v, i: int) -> Feature:
         c.fail(_join(path, "limits"), f"expected [smallest, largest] with smallest < largest, got [{lo:g}, {hi:g}] ({what})")
     length = c.number(v["length"], _join(path, "length"), positive=True)
     at = c.pair(v["at"], _join(path, "at"), "a basic location [x, y] on datum A") if "at" in v else (0.0, 0.0)
-    name = c.string(v["name"], _join(path, "name")) if "name" in v else ""
+    name = c.string(v["name"], _join(path, "name"), what="a name") if "name" in v else ""
     env = None
     if "envelope" in v:
         if not isinstance(v["envelope"], bool):
@@ -242,7 +261,7 @@ def _feature(c: _Ctx, v, i: int) -> Feature:
 def _fastener(c: _Ctx, v, i: int) -> Fastener:
     path = f"fastener[{i}]"
     c.table(v, path, FASTENER_KEYS, required=("id", "kind", "fastener", "hole"))
-    fid = c.string(v["id"], _join(path, "id"))
+    fid = c.string(v["id"], _join(path, "id"), what="an id", max_len=MAX_ID)
     path = f'fastener[{i}] "{fid}"'
     kind = c.string(v["kind"], _join(path, "kind"), ["floating", "fixed"])
     F = c.number(v["fastener"], _join(path, "fastener"), positive=True)
@@ -276,15 +295,21 @@ def parse(data: dict, file: str = "<scene>", source: str | None = None) -> Scene
     """Validate a decoded TOML document and build the scene."""
     c = _Ctx(file)
     c.table(data, "", TOP_KEYS, required=("units",))
-    title = c.string(data["title"], "title") if "title" in data else (Path(file).stem if source else "Untitled")
+    title = c.string(data["title"], "title", what="a title") if "title" in data else (Path(file).stem if source else "Untitled")
     units = Units(c.string(data["units"], "units", [u.value for u in Units]))
     standard = Standard(c.string(data.get("standard", "asme"), "standard", [s.value for s in Standard]))
     feats = []
     ids: dict[str, int] = {}
+    slugs: dict[str, str] = {}
     for i, fv in enumerate(c.array_of_tables(data.get("feature", []), "feature")):
         f = _feature(c, fv, i)
         if f.id in ids:
             c.fail(f"feature[{i}].id", f"expected a unique id, got {f.id!r} again (first at feature[{ids[f.id]}])")
+        key = file_slug(f.id).casefold()
+        if key in slugs:
+            c.fail(f"feature[{i}].id", f"expected an id that names its own output files; {f.id!r} and "
+                                       f"{slugs[key]!r} both become {file_slug(f.id)!r} in file names")
+        slugs[key] = f.id
         ids[f.id] = i
         feats.append(f)
     by_id = {f.id: f for f in feats}
@@ -307,13 +332,22 @@ def parse(data: dict, file: str = "<scene>", source: str | None = None) -> Scene
         if max(abs(a - b) for a, b in zip(dh, dp)) > 1e-12:
             c.fail(_join(path, "pin"), f"expected a pin whose axis runs the same way as the hole's; "
                    f"{h.id!r} is {_orient(h)} but {pn.id!r} is {_orient(pn)}")
-        mates.append(Mate(ends["hole"], ends["pin"]))
+        mate = Mate(ends["hole"], ends["pin"])
+        if mate in mates:
+            c.fail(path, f"expected each mate once; hole {mate.hole!r} with pin {mate.pin!r} is already "
+                         f"mate[{mates.index(mate)}]")
+        mates.append(mate)
     fasteners = []
     fids: set[str] = set()
     for i, fv in enumerate(c.array_of_tables(data.get("fastener", []), "fastener")):
         fa = _fastener(c, fv, i)
         if fa.id in fids:
             c.fail(f"fastener[{i}].id", f"expected a unique id, got {fa.id!r} again")
+        key = file_slug(fa.id).casefold()
+        if key in slugs:
+            c.fail(f"fastener[{i}].id", f"expected an id that names its own output files; {fa.id!r} and "
+                                        f"{slugs[key]!r} both become {file_slug(fa.id)!r} in file names")
+        slugs[key] = fa.id
         fids.add(fa.id)
         fasteners.append(fa)
     if not feats and not fasteners:
@@ -327,6 +361,18 @@ def parse(data: dict, file: str = "<scene>", source: str | None = None) -> Scene
                 val = rv[k]
                 if isinstance(val, bool) or not isinstance(val, (str, int, float)):
                     c.fail(_join("report", k), f"expected text or a number, got {_show(val)}")
+                if k == "quantity":
+                    if isinstance(val, str) or isinstance(val, float) and not (math.isfinite(val) and val.is_integer()):
+                        c.fail(_join("report", k), f"expected a whole number of parts, got {_show(val)}")
+                    if not 0 <= val <= 10**9:
+                        c.fail(_join("report", k), f"expected a whole number of parts from 0 to 1e9, got {val!r}")
+                    val = int(val)
+                elif isinstance(val, float) and not math.isfinite(val):
+                    c.fail(_join("report", k), f"expected text or a finite number, got {val}")
+                elif isinstance(val, str):
+                    why = text_problem(val, "text", 2000, newlines=True)
+                    if why:
+                        c.fail(_join("report", k), why)
                 items.append((k, str(val)))
         report = tuple(items)
     return Scene(title, units, standard, tuple(feats), tuple(mates), tuple(fasteners), report, source)
@@ -337,7 +383,11 @@ def loads(text: str, file: str = "<scene>", source: str | None = None) -> Scene:
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as e:
-        raise SceneError(file, "", f"not valid TOML: {e}") from None
+        raise SceneError(file, "", f"not valid TOML: {_short(str(e))}") from None
+    except RecursionError:
+        raise SceneError(file, "", "not a usable TOML scene: arrays or tables nested too deeply") from None
+    except (ValueError, MemoryError, OverflowError) as e:  # e.g. an integer of more than 4300 digits
+        raise SceneError(file, "", f"not a usable TOML scene: {_short(str(e))}") from None
     return parse(data, file, source)
 
 
@@ -406,7 +456,8 @@ def dumps(scene: Scene) -> str:
         if fa.projection is not None:
             out.append(f"projection = {_v(fa.projection)}")
     if scene.report:
-        out += ["", "[report]"] + [f"{k} = {_v(v)}" for k, v in scene.report]
+        out += ["", "[report]"] + [f"{k} = {v if k == 'quantity' and v.isdigit() else _v(v)}"
+                                   for k, v in scene.report]
     return "\n".join(out) + "\n"
 
 

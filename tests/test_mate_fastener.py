@@ -123,7 +123,7 @@ def test_projected_hole_mate_uses_boundary_over_the_engaged_length():
     assert m.hole_boundary.value == pytest.approx(10.0 - 0.020 * 15 / 12)
     assert m.clearance_min == pytest.approx(9.975 - 10.005)
     assert any("projected zone" in a for a in m.assumptions)
-    assert any("datum features B" in a for a in m.assumptions)
+    assert any("datum feature B" in a for a in m.assumptions)
     pos = Feature("h", Kind.HOLE, (10.0, 10.015), 15.0, tolerance=Tolerance(
         Characteristic.POSITION, 0.020, material=Material.MMC, datums=("A", "B"), projected=12.0))
     m2 = analyse_mate(analyse_feature(pos), analyse_feature(p))
