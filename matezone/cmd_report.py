@@ -7,6 +7,8 @@ from __future__ import annotations
 
 import math
 import os
+import signal
+import sys
 from pathlib import Path
 
 from matezone.cli import UserError
@@ -74,8 +76,10 @@ def inspect_all(scene, points: dict[str, str], bonus_basis: str) -> dict:
 
 
 def run(args, load) -> int:
-    from geom.analysis import analyse_scene
-
+    if not os.environ.get("DISPLAY") and not os.environ.get("WAYLAND_DISPLAY"):
+        # no display: let VTK render through EGL directly instead of trying an X server first
+        # (which prints a "bad X server connection" warning on stderr)
+        os.environ.setdefault("VTK_DEFAULT_OPENGL_WINDOW", "vtkEGLRenderWindow")
     scene = load(args.scene)
     sizes = parse_sizes(list(args.size or []), scene)
     points = parse_points(list(getattr(args, "points", None) or []), scene)
@@ -89,19 +93,36 @@ def run(args, load) -> int:
     if args.view not in VIEWS:
         raise UserError(f"--view {args.view!r}: expected one of {', '.join(VIEWS)}")
     inspections = inspect_all(scene, points, basis)
+    from viewer.reportdir import ReportDirError, check_target, write_report_atomic
+
     out = Path(args.out)
-    if out.exists() and not out.is_dir():
-        raise UserError(f"--out {args.out!r}: exists and is not a folder")
     try:
-        out.mkdir(parents=True, exist_ok=True)
-    except OSError as e:
-        raise UserError(f"--out {args.out!r}: cannot create the folder ({e.strerror})") from None
-    if not os.access(out, os.W_OK):
-        raise UserError(f"--out {args.out!r}: the folder is not writable")
-    from viewer.report import write_report
+        check_target(out)
+    except ReportDirError as e:
+        raise UserError(str(e)) from None
+    from geom.analysis import analyse_scene
 
     res = analyse_scene(scene)
-    written = write_report(res, out, sizes=sizes, view=args.view, progress=lambda s: print(s, flush=True),
-                           inspections=inspections)
+    previous = signal.getsignal(signal.SIGTERM)
+
+    def _terminate(signum, frame):  # the window's Cancel, or `kill`: clean up like Ctrl-C
+        raise KeyboardInterrupt
+
+    try:
+        signal.signal(signal.SIGTERM, _terminate)
+    except ValueError:  # not the main thread
+        previous = None
+    try:
+        written = write_report_atomic(res, out, sizes=sizes, view=args.view,
+                                      progress=lambda s: print(s, flush=True), inspections=inspections)
+    except ReportDirError as e:
+        raise UserError(str(e)) from None
+    except KeyboardInterrupt:
+        print(f"matezone: report interrupted; nothing was written to {str(out)!r} "
+              "(a previous report there is unchanged)", file=sys.stderr)
+        return 130
+    finally:
+        if previous is not None:
+            signal.signal(signal.SIGTERM, previous)
     print(f"wrote {len(written)} files to {out}")
     return 0
