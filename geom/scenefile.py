@@ -462,19 +462,43 @@ def dumps(scene: Scene) -> str:
 
 
 def save(scene: Scene, path: str | os.PathLike) -> None:
-    """Write atomically: a temporary file in the same folder, flushed, then renamed over."""
+    """Write atomically: a temporary file in the same folder, flushed, then renamed over.
+
+    A symbolic link is saved through to its target (the link stays a link); an existing file
+    keeps its permission bits; a path that is not a regular file (a folder, device or pipe) is
+    refused with a :class:`SceneError`, and so is a folder that cannot be written.
+    """
     p = Path(path)
+    if p.is_symlink():
+        p = p.resolve()
+    if p.exists() and not p.is_file():
+        raise SceneError(str(path), "", "is not a regular file (a folder, device or pipe); cannot save a scene there")
+    mode = None
+    if p.exists():
+        import stat as _stat
+
+        mode = _stat.S_IMODE(os.stat(p).st_mode)
     text = dumps(scene)
-    fd, tmp = tempfile.mkstemp(prefix=f".{p.name}.", suffix=".tmp", dir=p.parent)
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=f".{p.name}.", suffix=".tmp", dir=p.parent)
+    except OSError as e:
+        raise SceneError(str(path), "", f"cannot be written ({e.strerror})") from None
     try:
         with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:
             fh.write(text)
             fh.flush()
             os.fsync(fh.fileno())
+        if mode is None:
+            umask = os.umask(0)
+            os.umask(umask)
+            mode = 0o666 & ~umask
+        os.chmod(tmp, mode)
         os.replace(tmp, p)
-    except BaseException:
+    except BaseException as e:
         try:
             os.unlink(tmp)
         except OSError:
             pass
+        if isinstance(e, OSError):
+            raise SceneError(str(path), "", f"cannot be written ({e.strerror or e}); the file is unchanged") from None
         raise

@@ -189,3 +189,20 @@ def test_python_dash_m_reports_user_errors_cleanly(tmp_path):
     p = subprocess.run([sys.executable, "-m", "matezone.cli", "inspect", str(ROOT / "scenes" / "cap_bore_inspection.toml"),
                         "--feature", "no-such-feature"], capture_output=True, text=True)
     assert p.returncode == 2 and "Traceback" not in p.stderr and "no-such-feature" in p.stderr
+
+
+def test_save_keeps_permissions_and_follows_links(tmp_path):
+    # common practice, no source: an editor's save keeps the file's mode and writes through a link
+    import stat
+
+    scene = load(ROOT / "scenes" / "gearbox_endcap_dowel.toml")
+    target = tmp_path / "real.toml"
+    target.write_text("placeholder")
+    target.chmod(0o640)
+    link = tmp_path / "link.toml"
+    link.symlink_to(target)
+    save(scene, link)
+    assert link.is_symlink() and stat.S_IMODE(target.stat().st_mode) == 0o640
+    assert load(target).title == scene.title
+    with pytest.raises(SceneError, match="not a regular file"):
+        save(scene, tmp_path)
