@@ -466,7 +466,8 @@ def save(scene: Scene, path: str | os.PathLike) -> None:
 
     A symbolic link is saved through to its target (the link stays a link); an existing file
     keeps its permission bits; a path that is not a regular file (a folder, device or pipe) is
-    refused with a :class:`SceneError`, and so is a folder that cannot be written.
+    refused with a :class:`SceneError`. A failed write raises its OSError and leaves the file as
+    it was.
     """
     p = Path(path)
     if p.is_symlink():
@@ -479,10 +480,7 @@ def save(scene: Scene, path: str | os.PathLike) -> None:
 
         mode = _stat.S_IMODE(os.stat(p).st_mode)
     text = dumps(scene)
-    try:
-        fd, tmp = tempfile.mkstemp(prefix=f".{p.name}.", suffix=".tmp", dir=p.parent)
-    except OSError as e:
-        raise SceneError(str(path), "", f"cannot be written ({e.strerror})") from None
+    fd, tmp = tempfile.mkstemp(prefix=f".{p.name}.", suffix=".tmp", dir=p.parent)
     try:
         with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:
             fh.write(text)
@@ -494,11 +492,9 @@ def save(scene: Scene, path: str | os.PathLike) -> None:
             mode = 0o666 & ~umask
         os.chmod(tmp, mode)
         os.replace(tmp, p)
-    except BaseException as e:
+    except BaseException:
         try:
             os.unlink(tmp)
         except OSError:
             pass
-        if isinstance(e, OSError):
-            raise SceneError(str(path), "", f"cannot be written ({e.strerror or e}); the file is unchanged") from None
         raise
