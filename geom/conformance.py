@@ -63,6 +63,7 @@ class Check:
     evaluated: bool = True
     uncertainty: float | None = None
     inside: bool | None = None
+    missing: tuple[str, ...] = ()  # parts of a combined check that could not be evaluated
 
     @property
     def conforms(self) -> bool | None:
@@ -84,6 +85,8 @@ class Check:
         """The outcome as printed beside the check, e.g. ``conformance proven (U = 0.001)``."""
         if not self.evaluated:
             return "not evaluated"
+        if self.outcome is Outcome.NOT_PROVEN and self.missing:
+            return f"not proven: {', '.join(self.missing)} not evaluated"
         if self.uncertainty is None:
             return {Outcome.CONFORMS: "conforms on the measured values (no U stated)",
                     Outcome.NONCONFORMS: "does not conform on the measured values (no U stated)",
@@ -138,7 +141,7 @@ def decide(name: str, values, low: float | None, high: float | None, U: float | 
 def with_detail(c: Check, detail: str, name: str | None = None) -> Check:
     """The same check with another detail text (and name)."""
     return Check(name or c.name, c.outcome, detail, c.values, c.low, c.high, c.evaluated, c.uncertainty,
-                 c.inside)
+                 c.inside, c.missing)
 
 
 def combine(name: str, checks, required: bool = True) -> Check:
@@ -158,7 +161,8 @@ def combine(name: str, checks, required: bool = True) -> Check:
         out = Outcome.CONFORMS
     else:
         out = Outcome.NOT_PROVEN
-    return Check(name, out, detail, (), None, None, True, U, inside)
+    missing = tuple(c.name for c in checks if not c.evaluated) if required else ()
+    return Check(name, out, detail, (), None, None, True, U, inside, missing)
 
 
 WORDS = {

@@ -345,7 +345,7 @@ def ls_cylinder(P: np.ndarray, x0, z0: float, iterations: int = 50) -> tuple[np.
         J = np.c_[g, -np.ones(len(P))]
         res = d - r
         JtJ = J.T @ J
-        step = np.linalg.solve(JtJ, -(J.T @ res))
+        step = np.linalg.lstsq(JtJ, -(J.T @ res), rcond=None)[0]
         x = x + step[:4]
         r = r + step[4]
         if np.abs(step).max() < 1e-15 * max(1.0, abs(r)):

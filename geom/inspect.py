@@ -418,7 +418,11 @@ def inspect_feature(scene: Scene, feature_id: str, points=None, bonus_basis: str
         raise InspectError(f"{scene.source or 'scene'}: feature {feature.id!r}: cannot judge the tolerance: {why}")
     pc = _load_points(scene, feature, points, sections)
     if pc is not None:
-        return _from_points(scene, feature, pc, bonus_basis)
+        try:
+            return _from_points(scene, feature, pc, bonus_basis)
+        except (np.linalg.LinAlgError, FloatingPointError, OverflowError) as e:
+            raise InspectError(f"{pc.file}: the points do not determine a cylinder ({e}); expected rings of "
+                               "points around the feature at several heights") from None
     if feature.measured is None:
         raise InspectError(f"{scene.source or 'scene'}: feature {feature.id!r} has no [feature.measured] "
                            "values and no points were given (use --points FILE.csv)")

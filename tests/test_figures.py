@@ -12,6 +12,7 @@ from matplotlib.patches import Circle, PathPatch
 from shapely.geometry import Polygon
 
 from geom import analyse_scene, load, tolerance_allowed, virtual_condition
+from geom.scenefile import loads
 from geom.boundaries import FeatureState
 from viewer import figures as F
 from viewer import style as S
@@ -129,7 +130,8 @@ def test_interference_is_drawn_in_the_warning_colour(bracket, gearbox):
     # independent: the drawn overlap mapped back equals shapely's pin hull minus the opening
     assert data.overlap.area > 0
     (txt,) = _by_gid(fig, "gap-text")
-    assert "OVERLAP 0.030" in txt.get_text() and "0.0150 per side" in txt.get_text()
+    # per side: half of the diametral 0.030 (computed here)
+    assert "OVERLAP 0.030" in txt.get_text() and "(0.015 per side)" in txt.get_text()
     assert data.clearance == pytest.approx(-0.030, abs=1e-9)
     # gearbox end cap assembles: no overlap artist, clearance text instead
     fig2, data2 = F.through_view(gearbox, 0)
@@ -247,3 +249,59 @@ def test_figures_need_no_gui_backend():
             " or m == 'matplotlib.pyplot'))\n")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, check=True)
     assert out.stdout.strip() == "[]"
+
+
+def _iso(name):
+    """A demo scene read as an ISO GPS drawing (the same numbers, the ISO standard)."""
+    path = SCENES / name
+    text = path.read_text()
+    assert 'standard = "asme"' in text
+    return analyse_scene(loads(text.replace('standard = "asme"', 'standard = "iso"'), str(path), str(path)))
+
+
+def test_iso_figures_speak_iso():
+    """ISO 2692 terms (from memory): MMS / LMS, the maximum material virtual size MMVS and the
+    tolerance "increase"; no ASME word (bonus, VC, MMC, RFS) in an ISO figure."""
+    res = _iso("sensor_bracket_interference.toml")
+    hole = res.scene.feature("bracket-hole")
+    st = {"bracket-hole": FeatureState(hole.lmc)}
+    texts = " ".join(_texts(F.draw_view(n, res, sub, st)[0]) for n in F.VIEWS_2D for sub in (0, "bracket-hole"))
+    for w in ("MMVS", "MMS", "LMS", "increase", "Increase: tolerance allowed"):
+        assert w in texts, w
+    for w in ("bonus", "Bonus", "VC =", " VC ", "MMC", "LMC", "RFS", "Rule #1", "from memory", "§"):
+        assert w not in texts, w
+    # the ASME original says bonus and VC
+    asme = _texts(F.bonus_chart(analyse_scene(load(SCENES / "sensor_bracket_interference.toml")), 0)[0])
+    assert "bonus" in asme and "VC = size" in asme and "MMVS" not in asme
+
+
+def test_bonus_chart_draws_no_iso_boundary_that_does_not_exist(flange):
+    """ISO 8015 independency (from memory): a side that neither a modifier nor the envelope
+    bounds has no worst-case boundary; the chart draws no line there. The stud hole at (M):
+    no LMS-side boundary; the pilot at (L): no MMS-side boundary, its LMVS (39.950 - 0.020 =
+    39.930, ISO 2692) is drawn."""
+    fig, _ = F.bonus_chart(flange, "stud-hole")
+    assert _by_gid(fig, "stud-hole-mating") and not _by_gid(fig, "stud-hole-opposite")
+    assert "OB: none" in _texts(fig)
+    fig, _ = F.bonus_chart(flange, "pilot")
+    assert not _by_gid(fig, "pilot-mating") and _by_gid(fig, "pilot-opposite")
+    (opp,) = _by_gid(fig, "pilot-opposite")
+    assert opp.get_ydata()[0] == pytest.approx(39.930, abs=1e-9)
+    # the mate still draws: its fit assumes perfect form on the unbounded side, and says so
+    fig, _ = F.section_view(flange, 0)
+    assert "(perfect form assumed)" in _texts(fig)
+
+
+def test_line_to_line_fit_text():
+    """Zero worst-case clearance assembles (line-to-line, common practice, no source): no
+    overlap artist and the line-to-line text. Hole MMC 6.000 - t 0.010 = VC 5.990 = pin VC
+    5.980 + 0.010 (ASME Y14.5 VC = MMC -/+ t, from memory)."""
+    text = (SCENES / "sensor_bracket_interference.toml").read_text()
+    text = text.replace("value = 0.030", "value = 0.010").replace("[5.980, 5.990]", "[5.970, 5.980]")
+    res = analyse_scene(loads(text))
+    assert res.mates[0].clearance_min == pytest.approx(0.0, abs=1e-12)
+    for view in (F.through_view, F.section_view):
+        fig, data = view(res, 0)
+        assert _by_gid(fig, "overlap") == []
+        (txt,) = _by_gid(fig, "gap-text")
+        assert txt.get_text().startswith("line-to-line")

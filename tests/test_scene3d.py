@@ -266,7 +266,7 @@ characteristic = "position"
 zone = "width"
 value = 0.01
 material = "MMC"
-datums = ["A"]
+datums = ["A", "B"]
 [[mate]]
 hole = "h"
 pin = "p"
@@ -303,8 +303,14 @@ def test_every_scene_builds_and_renders(path):
             insp = inspect_feature(res.scene, f.id)
             sc3 = build_inspection_scene(res, insp)
             assert sc3.find("points", "measured points").mesh.n_points == len(insp.points)
-            assert len(sc3.verdicts) == 3
+            # size, axis, surface, and the axis reading that does not govern where there is one
+            # and the line that says which readings decide the headline, and why
+            assert len(sc3.verdicts) == 3 + (insp.other_axis_check is not None) + bool(insp.verdict.why)
+            assert sc3.verdict == insp.verdict.headline
             built.append(sc3)
+    if not built:  # a scene of fasteners only: nothing to draw in 3D, and nothing fails
+        assert not res.scene.features and auto_exaggeration(res) == 1.0
+        return
     for sc3 in built:
         assert sc3.exaggeration >= 1.0
         assert set(sc3.cameras) == set(VIEWS)
@@ -397,3 +403,79 @@ def test_clearance_colour_scale_is_fixed_and_holds_every_state(gearbox, sensor):
         (lo, hi), = clims
         assert min(0.0, worst) - 1e-4 <= lo <= min(0.0, worst) + 1e-12
         assert (lo < 0) == (worst < 0) and hi > 0
+
+
+# ------------------------------------------------------------------------------- words
+
+
+def _iso(name: str) -> geom.SceneResult:
+    """A demo scene read as an ISO GPS drawing (the same numbers, the ISO standard)."""
+    path = os.path.join(ROOT, "scenes", name)
+    text = open(path).read()
+    assert 'standard = "asme"' in text
+    return geom.analyse_scene(geom.loads(text.replace('standard = "asme"', 'standard = "iso"'), path, path))
+
+
+def _words(sc3: Scene3D) -> str:
+    return "\n".join([*sc3.readouts, *(lbl for lbl, _ in sc3.legend), *(lb.text for lb in sc3.labels),
+                      *(t for t, _ in sc3.verdicts), sc3.verdict, sc3.caption])
+
+
+def test_iso_scene_speaks_iso():
+    """ISO 2692 terms (from memory): MMS / LMS, the maximum material virtual size MMVS, and the
+    tolerance "increase" where ASME says bonus; no ASME word on an ISO picture."""
+    res = _iso("gearbox_endcap_dowel.toml")
+    for sc3 in (build_mate_scene(res, 0), build_feature_scene(res, "cap-bore"),
+                build_mate_scene(res, 0, states={"cap-bore": FeatureState(res.scene.feature("cap-bore").lmc)})):
+        words = _words(sc3)
+        for w in ("MMVS", "MMS", "increase", "tolerance allowed = t + increase"):
+            assert w in words, w
+        for w in ("bonus", "VC =", "VC:", " VC ", "MMC", "LMC", "RFS", "Rule #1", "from memory", "\u00a7"):
+            assert w not in words, w
+
+
+def test_asme_words_and_tolerance_allowed_formula(gearbox):
+    """The ASME picture says bonus and VC; "tolerance allowed = t + bonus" is geom's formula
+    (ASME Y14.5: tolerance allowed = stated + bonus, bonus = produced size - MMC, from memory)."""
+    hole = gearbox.scene.feature("cap-bore")
+    st = FeatureState(hole.lmc)
+    sc3 = build_mate_scene(gearbox, 0, states={"cap-bore": st})
+    t = hole.tolerance.value
+    b = hole.lmc - hole.mmc  # bonus at LMC, computed here
+    u = gearbox.scene.units
+    words = _words(sc3)
+    assert f"tolerance allowed = t + bonus = {u.fmt(t)} + {u.fmt(b)} = {u.fmt(t + b)}" in words
+    assert "VC: worst-case mating boundary" in words
+
+
+def test_iso_boundaries_none_build(motor):
+    """ISO 8015 independency (from memory): a side that neither a modifier nor the envelope
+    bounds has no worst-case boundary; the pictures draw none there and say why."""
+    pilot = motor.features["pilot"]  # position at LMC, no (M)/(E): the MMS side is not bounded
+    assert pilot.outer_boundary.value is None and pilot.resultant_condition.value is None
+    sc3 = build_feature_scene(motor, "pilot", exaggeration=1.0)
+    assert not any(it.name.startswith("pin O") for it in sc3.layers.get("vc", ()))
+    assert "OB: none" in "\n".join(sc3.readouts)
+    # the LMVS (LMS - t = 39.950 - 0.020 = 39.930, ISO 2692, from memory) is on the other side
+    (cage,) = sc3.layers["rc"]
+    assert cage.mesh.bounds[1] - cage.mesh.bounds[0] == pytest.approx(39.930, abs=1e-9)
+    stud = motor.features["stud-hole"]  # (M) only: no LMS-side boundary, no RC
+    assert stud.resultant_condition.value is None
+    st3 = build_feature_scene(motor, "stud-hole")
+    assert "rc" not in st3.layers and "vc" in st3.layers
+
+
+def test_fastener_only_scene():
+    """A scene of fasteners only (no feature) is valid: nothing in the 3D module assumes a feature."""
+    res = geom.analyse_scene(geom.loads('''title = "studs only"
+units = "mm"
+[[fastener]]
+id = "s"
+kind = "fixed"
+fastener = 6.0
+hole = 6.6
+thread_depth = 10.0
+projection = 8.0
+'''))
+    assert not res.scene.features and not res.scene.mates
+    assert auto_exaggeration(res) == 1.0

@@ -280,10 +280,14 @@ def test_line_clip_matches_dense_sampling():
         t = np.linspace(0.0, 1.0, 4001)
         a, b = P[segs[:, 0]], P[segs[:, 1]]
         s = ((a - o) @ n)[:, None] + t[None, :] * ((b - a) @ n)[:, None]  # distance along each segment
-        expected = (np.linalg.norm(b - a, axis=1) * np.mean(s >= 0.0, axis=1)).sum()
+        seg_len = np.linalg.norm(b - a, axis=1)
+        kept = s >= 0.0
+        expected = (seg_len * np.mean(kept, axis=1)).sum()
         got = _measures(S3._clip_behind(it.mesh, o, n))["length"]
-        # sampling resolves a crossing to 1/4000 of its segment
-        assert abs(got - expected) <= 2.5e-4 * _measures(it.mesh)["length"] / 2 + 1e-12, it.name
+        # sampling resolves a crossing to 1/4000 of its segment (a long straight segment that
+        # crosses the plane once, as the feature axis of a scan, is off by up to that much)
+        crossing = kept.any(axis=1) & ~kept.all(axis=1)
+        assert abs(got - expected) <= (seg_len[crossing] / 4000.0).sum() + 1e-12, it.name
         checked += 1
     assert checked > 50
 

@@ -11,7 +11,9 @@ import numpy as np
 import pytest
 
 import geom
+from geom.conformance import Outcome, verdict_word
 from geom.inspect import inspect_feature
+from geom.scenefile import loads
 from viewer import style as S
 from viewer.scene3d import (
     LAYERS, N_PHI, VIEWS, add_to_plotter, build_inspection_scene, render_image, section_cut,
@@ -137,16 +139,19 @@ def test_related_envelope_vc_and_zone(scan, true_scale):
     cx, cy = (x0 + x1) / 2, (y0 + y1) / 2
     side = max(x1 - x0, y1 - y0)  # bounds of an N-gon (N divisible by 4): its diameter
     assert side == pytest.approx(t_allowed, abs=1e-9)
-    # floating zone: placed where the axis reading puts it, the centre of the smallest circle
-    # holding the section centres. Independent, here: minimise the largest distance with scipy.
-    from scipy.optimize import minimize
-
-    xy = insp.median_line[:, :2]
-    worst = lambda c: np.hypot(*(xy - c).T).max()
-    best = minimize(worst, xy.mean(axis=0), method="Nelder-Mead",
-                    options=dict(xatol=1e-10, fatol=1e-12, maxiter=20000))
-    assert worst(np.array([cx, cy])) == pytest.approx(best.fun, abs=2e-7)
-    assert 2 * best.fun == pytest.approx(insp.axis.deviation, abs=1e-6)  # the reading geom.inspect printed
+    # floating zone: placed where the governing axis reading puts it. Perpendicularity at MMC
+    # under ASME applies to the feature axis, the axis of the unrelated actual mating envelope
+    # (ASME Y14.5 definitions, from memory); seen along A that straight axis runs between its
+    # ends at z = 0 and z = L, and the smallest circle holding both is centred midway
+    # (geometry, computed here from geom.inspect's unrelated envelope).
+    assert insp.axis.basis == "feature axis"
+    e = insp.unrelated
+    ends = np.array([e.at_z(0.0), e.at_z(insp.feature.length)])
+    assert (cx, cy) == pytest.approx(tuple(ends.mean(axis=0)), abs=1e-9)
+    assert insp.axis.deviation == pytest.approx(np.hypot(*(ends[1] - ends[0])), abs=1e-9)
+    # drawn as the governing axis: a straight line along that envelope's axis over the feature
+    fa = true_scale.find("axis", "feature axis").mesh.points
+    assert np.allclose(fa[:, :2], ends, atol=1e-9) and fa[:, 2] == pytest.approx([0.0, insp.feature.length])
 
 
 def test_median_line_vertices(scan, true_scale):
@@ -159,6 +164,16 @@ def test_median_line_vertices(scan, true_scale):
     assert np.array_equal(pts.points, insp.median_line)
 
 
+def _smallest_circle_diameter(xy: np.ndarray) -> float:
+    """Diameter of the smallest circle holding the points (scipy Nelder-Mead on the largest
+    distance, computed here)."""
+    from scipy.optimize import minimize
+
+    worst = lambda c: np.hypot(*(xy - c).T).max()
+    best = minimize(worst, xy.mean(axis=0), method="Nelder-Mead", options=dict(xatol=1e-10, fatol=1e-12, maxiter=20000))
+    return 2 * best.fun
+
+
 def test_readouts_and_verdicts(scan, true_scale):
     res, insp = scan
     u = res.scene.units
@@ -168,15 +183,70 @@ def test_readouts_and_verdicts(scan, true_scale):
               insp.virtual_condition, insp.axis.deviation):
         assert u.fmt(v) in text
     assert "cap-bore" in text and "8.000 - 8.022" in text and "bonus basis: unrelated" in text
-    words = {line.split()[0]: (line.split()[1], colour) for line, colour in true_scale.verdicts}
-    # the demo scan: size and surface conform, the axis reading fails (scenes/cap_bore_inspection.toml)
-    assert insp.size_check.conforms and insp.surface_check.conforms and insp.axis_check.conforms is False
-    assert words == {"size": ("CONFORMS", S.OK), "axis": ("FAILS", S.INTERFERENCE),
-                     "surface": ("CONFORMS", S.OK)}
+    assert "tolerance allowed = t + bonus = 0.015 + " in text  # ASME Y14.5: t + bonus, t = 0.015 (scene file)
+    # the two axis readings, computed here: the feature axis (axis of the unrelated envelope,
+    # ASME Y14.5 definitions, from memory) needs the distance between its ends seen along A; the
+    # median line (section centres) the smallest circle holding them (scipy). The tolerance
+    # allowed t + bonus = 0.015 + (AME - MMC) (ASME Y14.5 bonus, from memory).
+    e, L = insp.unrelated, insp.feature.length
+    feature_axis = float(np.hypot(*(np.array(e.at_z(L)) - np.array(e.at_z(0.0)))))
+    median_line = _smallest_circle_diameter(insp.median_line[:, :2])
+    allowed = 0.015 + (e.diameter - 8.000)
+    U = 0.001  # scene file
+    # ISO 14253-1 decision rule (from memory): the feature axis conforms (within the zone shrunk
+    # by U), the median line does not (outside the zone grown by U)
+    assert feature_axis <= allowed - U and median_line > allowed + U
+    assert insp.feature_axis.deviation == pytest.approx(feature_axis, abs=1e-9)
+    assert insp.median_axis.deviation == pytest.approx(median_line, abs=1e-6)
+    fa_txt, ml_txt, al_txt = u.fmt_cmp(feature_axis, median_line, allowed)
+    assert f"feature axis needs \u00d8{fa_txt} (governs)" in text
+    assert f"median line needs \u00d8{ml_txt} (does not govern)" in text
+    assert f"(tolerance allowed {al_txt})" in text
+    # the one overall verdict: word for word geom's headline, in the colour of its role
+    assert insp.verdict.outcome is Outcome.CONFORMS  # under ASME the feature axis governs (see above)
+    assert true_scale.verdict == insp.verdict.headline
+    assert true_scale.verdict.startswith("PART CONFORMS")
+    assert true_scale.verdict_colour == S.ROLE_COLOUR[insp.verdict.role] == S.OK
+    *checks, why = true_scale.verdicts
+    assert why == (insp.verdict.why, S.TEXT)  # which readings decide, and why: geom's words
+    rows = [(line.split()[0], line.split()[1], line, colour) for line, colour in checks]
+    # size, the governing axis reading, surface, then the reading that does not govern
+    assert [(r[0], r[1], r[3]) for r in rows] == [("size", "CONFORMS", S.OK), ("axis", "CONFORMS", S.OK),
+                                                  ("surface", "CONFORMS", S.OK), ("axis", "DOES", S.NEUTRAL)]
+    assert "feature axis" in rows[1][2] and "does not govern" not in rows[1][2]
+    assert "median line" in rows[3][2] and rows[3][2].endswith("does not govern")
+    for c, (_, _, line, _) in zip((insp.size_check, insp.axis_check, insp.surface_check, insp.other_axis_check), rows):
+        word, _ = verdict_word(c)
+        assert word in line and c.detail in line
     legend = " | ".join(lbl for lbl, _ in true_scale.legend)
-    for what in ("measured points", "median line", "unrelated AME", "related AME", "tolerance zone", "VC"):
+    for what in ("measured points", "median line (section centres): does not govern", "feature axis",
+                 "unrelated actual mating envelope (AME)", "related actual mating envelope (AME)",
+                 "tolerance zone", "tolerance allowed = t + bonus", "VC"):
         assert what in legend
     assert "TRUE SCALE" in true_scale.caption
+    labels = " | ".join(lb.text for lb in true_scale.labels)
+    assert "feature axis: needs" in labels and "(governs)" in labels and "(does not govern)" in labels
+
+
+def test_iso_inspection_speaks_iso(scan):
+    """The same scan under ISO: the standard's own words everywhere (ISO 2692 MMVS and
+    "increase", ISO 14405-1 associated cylinders GX, from memory); the extracted median line
+    governs (ISO 1101, from memory)."""
+    text = open(SCAN).read().replace('standard = "asme"', 'standard = "iso"')
+    assert 'standard = "iso"' in text
+    res = geom.analyse_scene(loads(text, SCAN, SCAN))
+    insp = inspect_feature(res.scene, "cap-bore")
+    sc3 = build_inspection_scene(res, insp)
+    words = "\n".join([*sc3.readouts, *(lbl for lbl, _ in sc3.legend), *(lb.text for lb in sc3.labels),
+                       *(t for t, _ in sc3.verdicts), sc3.verdict])
+    for w in ("MMVS", "increase", "associated cylinder", "GX", "t + increase", "MMS"):
+        assert w in words, w
+    for w in ("bonus", "VC =", "AME", "MMC", "RFS", "Rule #1", "mating envelope", "from memory", "\u00a7"):
+        assert w not in words, w
+    assert insp.axis.basis == "median line"
+    assert "extracted median line (section centres): governs" in words
+    assert sc3.verdict == insp.verdict.headline
+    assert "feature axis" not in {it.name for it in sc3.layers.get("axis", ())}
 
 
 def test_not_proven_verdict_is_amber():
@@ -207,6 +277,11 @@ uncertainty = 0.001
     assert "points" not in sc3.layers and "envelopes" in sc3.layers
     words = {line.split()[0]: (line.split()[1:3], colour) for line, colour in sc3.verdicts}
     assert words["axis"] == (["NOT", "PROVEN"], S.NOT_PROVEN)
+    # one typed axis reading: nothing is labelled "does not govern"
+    assert len(sc3.verdicts) == 3 + 1 and not any("does not govern" in t for t, _ in sc3.verdicts)
+    # the overall verdict as geom states it, in its role's colour (the window and the PDF show the same)
+    assert sc3.verdict == insp.verdict.headline
+    assert sc3.verdict_colour == S.ROLE_COLOUR[insp.verdict.role]
     assert sc3.exaggeration >= 1.0
 
 

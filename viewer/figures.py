@@ -35,9 +35,9 @@ from matplotlib.figure import Figure
 from matplotlib.patches import Arc, Circle, PathPatch, Polygon as MplPolygon, Rectangle
 from matplotlib.path import Path as MplPath
 
-from geom.analysis import SceneResult, clearance_at, term
+from geom.analysis import SceneResult, clearance_at, fits, line_to_line, term
 from geom.boundaries import FeatureState, effective_size, tolerance_allowed, virtual_condition
-from geom.model import Feature, Kind, Material, Zone
+from geom.model import Feature, Kind, Material, Standard, Zone
 from geom.placement import AxisPlacement, worst_case_axis
 from geom.throughview import ThroughView, clear_opening, swept_envelope
 from viewer import style as S
@@ -418,31 +418,41 @@ def through_view(res: SceneResult, subject, states=None, exaggeration: float | N
     return fig, data
 
 
-def _circle_caption(u, std, f, st, diameter: float, what: str, kind: str, generic: str, sign: str) -> str:
+def _circle_caption(u, std, f, st, diameter: float, what: str, kind: str, generic: str, sign: str,
+                    assumed: bool = False) -> str:
     """Caption of the through-view's circle: its shapely diameter, and the boundary it stands for
-    (= at display precision, or ~ where the elliptical-section term shows)."""
+    (= at display precision, or ~ where the elliptical-section term shows). ``assumed``: geom
+    finds no worst-case boundary on that side (the circle assumes perfect form)."""
     name = _boundary_name(f, st, std)
     eff = effective_size(f, st)
     eq = "=" if u.fmt(diameter) == u.fmt(eff) else "≈"
     tail = (f"{kind} {name} {u.fmt(eff)}" if name != generic
             else f"size {sign} tolerance allowed = {u.fmt(eff)}")
-    return f"{what} ⌀{u.fmt(diameter)}\n{eq} {tail}"
+    return f"{what} ⌀{u.fmt(diameter)}\n{eq} {tail}" + ("\n(perfect form assumed)" if assumed else "")
 
 
-def _gap_text(u, clearance: float, interferes: bool, consequence: str, line_to_line: str) -> str:
+def _form_assumed(res: SceneResult, f: Feature) -> bool:
+    """geom finds no worst-case boundary on the feature's mating (MMC) side (ISO independency
+    without (M) or (E)): a drawn boundary there assumes perfect form."""
+    fr = res.features[f.id]
+    return (fr.inner_boundary if f.kind is Kind.HOLE else fr.outer_boundary).value is None
+
+
+def _gap_text(u, clearance: float, interferes: bool, consequence: str, line_to_line_text: str) -> str:
     """The dimension text of a diametral clearance or overlap (true value, and per side)."""
-    per, dia = _half(u, clearance / 2), u.fmt(abs(clearance))
+    per, dia = _half(u, clearance), u.fmt(abs(clearance))
     if interferes:
         return f"OVERLAP {dia} on ⌀\n({per} per side):\n{consequence}"
-    if abs(clearance) <= 1e-9:
-        return line_to_line
+    if line_to_line(clearance):
+        return line_to_line_text
     return f"clearance {dia} on ⌀\n({per} per side)"
 
 
-def _half(units, v: float) -> str:
-    """A per-side (half) value: one decimal more than the units' precision, so that twice it
-    reads as the diametral value."""
-    return f"{abs(v):.{units.decimals + 1}f}"
+def _half(units, clearance: float) -> str:
+    """The per-side (half) value of a diametral clearance as it is shown, with the digits it
+    needs (``Units.fmt`` extends them: half of 0.025 prints 0.0125), so that twice it reads as
+    the diametral value."""
+    return units.fmt(abs(float(units.fmt(clearance))) / 2.0)
 
 
 def _state_line(res, states) -> str:
@@ -504,7 +514,8 @@ def _draw_through(ax, res: SceneResult, d: ThroughData, fs: float):
         rc = ex.radial(hv.diameter / 2)
         c = ex.lateral(hv.centre)
         ax.add_patch(Circle(c, rc, fill=False, ec=S.VC, lw=2.0, zorder=5, gid="inscribed"))
-        txt = _circle_caption(u, std, f, st, hv.diameter, "opening's largest circle", "hole", "clear boundary", "−")
+        txt = _circle_caption(u, std, f, st, hv.diameter, "opening's largest circle", "hole", "clear boundary", "−",
+                              _form_assumed(res, f))
         a = math.radians(-35)
         calls.append(((c[0] + rc * math.cos(a), c[1] + rc * math.sin(a)), txt, S.VC, False, "inscribed-text"))
     if d.pin is not None:
@@ -523,7 +534,8 @@ def _draw_through(ax, res: SceneResult, d: ThroughData, fs: float):
         ax.add_patch(Circle(cp, rp, fill=False, ec=S.MATE_AXIS, lw=2.0, zorder=6, gid="pin-envelope"))
         legend.append(Line2D([], [], color=S.MATE_AXIS, lw=2.0, label="pin's enclosing circle (smallest around it)"))
         reach.append(rp)
-        txt = _circle_caption(u, std, f, st, pv.diameter, "pin's enclosing circle", "pin", "swept boundary", "+")
+        txt = _circle_caption(u, std, f, st, pv.diameter, "pin's enclosing circle", "pin", "swept boundary", "+",
+                              _form_assumed(res, f))
         a = math.radians(35)
         calls.append(((cp[0] + rp * math.cos(a), cp[1] + rp * math.sin(a)), txt, S.MATE_AXIS, False, "pin-text"))
     if d.hole is not None:
@@ -531,7 +543,7 @@ def _draw_through(ax, res: SceneResult, d: ThroughData, fs: float):
                       Line2D([], [], color=S.VC, lw=2.0, label="largest circle in the opening"))
     R = max(reach)
     if d.hole is not None and d.pin is not None:
-        interferes = d.clearance is not None and d.clearance < -1e-9
+        interferes = d.clearance is not None and not fits(d.clearance)
         if interferes and d.overlap is not None and not d.overlap.is_empty:
             path = _poly_path(d.overlap)
             if path is not None:
@@ -759,7 +771,7 @@ def _draw_section(ax, res: SceneResult, d: SectionData, fs: float):
                 ax.text(-xr * 0.62, -plate / 2, "pin's part", ha="center", va="center", fontsize=fs * 0.8,
                         bbox=dict(boxstyle="round,pad=0.15", fc=S.BACKGROUND, ec="none", alpha=0.85), zorder=3)
     # overlap, in display coordinates: the mapping is affine on each side of the axis
-    interferes = d.clearance is not None and d.clearance < -1e-9
+    interferes = d.clearance is not None and not fits(d.clearance)
     if "hole" in shapes and "pin" in shapes and interferes:
         ov = shapes["pin"].intersection(shapes["hole"][0]).union(shapes["pin"].intersection(shapes["hole"][1]))
         path = _poly_path(ov) if not ov.is_empty else None
@@ -806,7 +818,8 @@ def _draw_section(ax, res: SceneResult, d: SectionData, fs: float):
         for sgn in (-1, 1):
             ax.plot([sgn * xb, sgn * xb], [zb0, zb1], color=bcol, lw=1.4, ls=bls, zorder=7, gid=f"{f.id}-boundary")
         legend.append(Line2D([], [], color=bcol, lw=1.4, ls=bls,
-                             label=f"{f.kind.value} {_boundary_name(f, st, std)} ⌀{un.fmt(b)}"))
+                             label=f"{f.kind.value} {_boundary_name(f, st, std)} ⌀{un.fmt(b)}"
+                             + (" (perfect form assumed)" if _form_assumed(res, f) else "")))
     # ---------------------------------------------------------------- zone width dimensions
     for fs_list, base, sgn in ((top_dims, ztop, 1), (bot_dims, min(zmin, -plate), -1)):
         for i, f in enumerate(fs_list):
@@ -948,13 +961,16 @@ def bonus_chart(res: SceneResult, subject, states=None, *, fig: Figure | None = 
             ax_b = fig.add_subplot(gs[1, j], sharex=ax_t)
             _draw_bonus(ax_t, ax_b, res, res.scene.feature(pan.feature_id), pan, fontsize if own else fontsize * 0.95)
         if own:
-            _title(fig, None, True, f"Bonus: tolerance allowed vs produced size\n{data.subject.title}", fontsize)
+            B = term("bonus", res.scene.standard)[0]
+            _title(fig, None, True, f"{B[0].upper() + B[1:]}: tolerance allowed vs produced size\n{data.subject.title}",
+                   fontsize)
     return fig, data
 
 
 def _draw_bonus(ax_t, ax_b, res, f: Feature, p: BonusPanel, fs: float):
     u, std = res.scene.units, res.scene.standard
     mmc_n, lmc_n = term("mmc", std)[0], term("lmc", std)[0]
+    B = term("bonus", std)[0]
     for ax in (ax_t, ax_b):
         ax.tick_params(labelsize=fs * 0.8, length=2.5, pad=1.5)
         ax.grid(True, color=S.PART, lw=0.4, alpha=0.7)
@@ -967,12 +983,13 @@ def _draw_bonus(ax_t, ax_b, res, f: Feature, p: BonusPanel, fs: float):
     ax_t.xaxis.set_major_locator(matplotlib.ticker.FixedLocator([f.limits[0], f.limits[1]]))
     ax_b.xaxis.set_major_locator(matplotlib.ticker.FixedLocator([f.limits[0], f.limits[1]]))
     ax_t.tick_params(labelbottom=False)
-    lim_note = {"MMC": f"at {mmc_n} (M)", "LMC": f"at {lmc_n} (L)", "RFS": "RFS: no modifier", "none": ""}[p.material]
+    rfs = term("rfs", std)[1] if std is Standard.ISO else f"{term('rfs', std)[0]}: no modifier"
+    lim_note = {"MMC": f"at {mmc_n} (M)", "LMC": f"at {lmc_n} (L)", "RFS": rfs, "none": ""}[p.material]
     ax_t.set_title(f"{f.kind.value} '{f.id}'  {f.tolerance.symbol(u) if f.tolerance else ''}",
                    fontsize=fs * 0.95, loc="left", pad=3)
     if f.tolerance is None:
         for ax in (ax_t, ax_b):
-            ax.text(0.5, 0.5, "no geometric tolerance: no bonus", transform=ax.transAxes, ha="center",
+            ax.text(0.5, 0.5, f"no geometric tolerance: no {B}", transform=ax.transAxes, ha="center",
                     va="center", fontsize=fs)
         ax_b.set_xlabel(f"produced size ({u.value})", fontsize=fs * 0.85)
         return
@@ -995,7 +1012,6 @@ def _draw_bonus(ax_t, ax_b, res, f: Feature, p: BonusPanel, fs: float):
               ha="center")
     # ---- bottom: produced size and the boundaries
     ax_b.plot(p.sizes, p.sizes, color=S.SURFACE, lw=1.2, gid=f"{f.id}-size")
-    ax_b.fill_between(p.sizes, p.sizes, p.mating, color=S.ZONE, alpha=0.15, lw=0)
     mating_const = p.material == "MMC"
     opp_const = p.material == "LMC"
     vcn = term("vc_MMC", std)[0] if p.material == "MMC" else term("vc_LMC", std)[0]
@@ -1003,11 +1019,27 @@ def _draw_bonus(ax_t, ax_b, res, f: Feature, p: BonusPanel, fs: float):
              if mating_const else f"size {'−' if f.kind is Kind.HOLE else '+'} allowed (mating side)")
     o_lbl = (f"{vcn} = size {'+' if f.kind is Kind.HOLE else '−'} allowed = {u.fmt(p.constant)} (constant)"
              if opp_const else f"size {'+' if f.kind is Kind.HOLE else '−'} allowed (other side)")
-    ax_b.plot(p.sizes, p.mating, color=S.VC, lw=2.2 if mating_const else 1.3, gid=f"{f.id}-mating",
-              ls="-" if mating_const else (0, (4, 2)))
-    ax_b.plot(p.sizes, p.opposite, color=S.RC, lw=2.2 if opp_const else 1.1, gid=f"{f.id}-opposite",
-              ls="-" if opp_const else (0, (4, 2)))
-    allv = np.r_[p.sizes, p.mating, p.opposite]
+    # a side where geom finds no worst-case boundary (ISO independency: neither a modifier nor
+    # the envelope bounds it) has no line: the size does not limit form there
+    fr = res.features[f.id]
+    hole = f.kind is Kind.HOLE
+    mm_side = fr.inner_boundary if hole else fr.outer_boundary
+    lm_side = fr.outer_boundary if hole else fr.inner_boundary
+    shown_lines = [p.sizes]
+    if mm_side.value is not None:
+        ax_b.fill_between(p.sizes, p.sizes, p.mating, color=S.ZONE, alpha=0.15, lw=0)
+        ax_b.plot(p.sizes, p.mating, color=S.VC, lw=2.2 if mating_const else 1.3, gid=f"{f.id}-mating",
+                  ls="-" if mating_const else (0, (4, 2)))
+        shown_lines.append(p.mating)
+    else:
+        m_lbl = f"{mm_side.abbr(std)}: none ({mmc_n} side not bounded)"
+    if lm_side.value is not None:
+        ax_b.plot(p.sizes, p.opposite, color=S.RC, lw=2.2 if opp_const else 1.1, gid=f"{f.id}-opposite",
+                  ls="-" if opp_const else (0, (4, 2)))
+        shown_lines.append(p.opposite)
+    else:
+        o_lbl = f"{lm_side.abbr(std)}: none ({lmc_n} side not bounded)"
+    allv = np.concatenate(shown_lines)
     span = allv.max() - allv.min()
     ax_b.set_ylim(allv.min() - 0.12 * span, allv.max() + 0.3 * span)
     ax_b.set_ylabel(f"size ({u.value})", fontsize=fs * 0.8)
@@ -1016,6 +1048,7 @@ def _draw_bonus(ax_t, ax_b, res, f: Feature, p: BonusPanel, fs: float):
     lo_, hi_ = ax_b.get_ylim()
     i3 = len(p.sizes) // 3
     entries = [(p.sizes[i3], "produced size", S.SURFACE), (p.mating[i3], m_lbl, S.VC), (p.opposite[i3], o_lbl, S.TEXT)]
+    entries = [(min(max(yv, lo_), hi_), txt, col) for yv, txt, col in entries]  # a line not drawn: label in range
     fr = [(e[0] - lo_) / (hi_ - lo_) for e in entries]
     ys = _spread_y([f_ + 0.035 for f_ in fr], 0.03, 0.97, fs * 1.5 / (ax_b.get_position(original=True).height
                                                                     * ax_b.figure.get_figheight() * 72))
@@ -1033,7 +1066,7 @@ def _draw_bonus(ax_t, ax_b, res, f: Feature, p: BonusPanel, fs: float):
                       arrowprops=dict(arrowstyle="<|-|>", color=S.TEXT, lw=0.8, shrinkA=0, shrinkB=0, mutation_scale=6))
         ha = "right" if other > ref else "left"
         off = -1 if other > ref else 1
-        ax_t.annotate(f"bonus {u.fmt(tb - t)}", xy=(other, (t + tb) / 2), xytext=(off * 4, 0),
+        ax_t.annotate(f"{B} {u.fmt(tb - t)}", xy=(other, (t + tb) / 2), xytext=(off * 4, 0),
                       textcoords="offset points", ha=ha, va="center", fontsize=fs * 0.75)
     ax_b.set_xlim(p.sizes[0] - 0.04 * (p.sizes[-1] - p.sizes[0]), p.sizes[-1] + 0.04 * (p.sizes[-1] - p.sizes[0]))
     # name the limits on the x axis

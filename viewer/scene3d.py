@@ -39,9 +39,13 @@ from vtkmodules.util.numpy_support import numpy_to_vtk, numpy_to_vtkIdTypeArray,
 from vtkmodules.vtkCommonCore import vtkPoints
 from vtkmodules.vtkCommonDataModel import vtkCellArray
 
-from geom.analysis import FIT_SLACK, SceneResult, clearance_at, mate_formula, mate_verdict, term
+from geom.analysis import (
+    SceneResult, clearance_at, fits, mate_formula, mate_verdict, term, tolerance_allowed_derived,
+)
 from geom.boundaries import FeatureState, bonus, effective_size, tolerance_allowed
-from geom.model import Characteristic, Feature, Kind, Material, Units, Zone
+from geom.conformance import Outcome, readings_disagree, verdict_word
+from geom.inspect import envelope_abbr
+from geom.model import Characteristic, Feature, Kind, Material, Standard, Units, Zone
 from geom.placement import AxisPlacement, worst_case_axis
 
 from . import style as S
@@ -51,7 +55,7 @@ LAYERS = (
     "datum",  # datum plane A and the datum feature symbol
     "zone",  # tolerance zone at the produced size
     "zone_axis",  # axis of the zone (true position, or the floating zone's axis)
-    "axis",  # worst-case actual axes (and their entry/exit points)
+    "axis",  # worst-case actual axes (and their entry/exit points); a measured feature's feature axis
     "surface",  # the feature's surface at the produced size around its actual axis
     "vc",  # the mating-side worst-case boundary: VC (MMVS) at MMC, IB/OB for RFS
     "rc",  # the opposite boundary: RC (hidden by default)
@@ -182,6 +186,8 @@ def auto_exaggeration(res: SceneResult, mate_index: int | None = None, feature_i
     number (:data:`NICE` x 10^n), and never so large that a drawn radius falls
     below a third of the reference radius. Without any zone the size tolerance is used."""
     feats = _involved(res, mate_index, feature_id)
+    if not feats:  # a scene of fasteners only: nothing toleranced to scale
+        return 1.0
     ref = feats[0]
     D = ref.mmc
     dev = max(_zone_mmc(f) for f in feats)
@@ -640,10 +646,13 @@ def _boundary_terms(res: SceneResult, f: Feature) -> tuple[tuple[str, float | No
     vc = fr.virtual_condition
     rc = fr.resultant_condition
     vc_name = vc.abbr(std)
+    # a value is None where no boundary exists (ISO independency on a side no modifier or
+    # envelope bounds): nothing is drawn there
     if tol.material is Material.MMC:
         return ((vc_name, vc.value), (rc.abbr(std), rc.value))
     if tol.material is Material.LMC:  # the VC sits on the LMC side; the mate sees the RC side
-        return ((f"{mm_side.abbr(std)} = {rc.abbr(std)}", mm_side.value), (vc_name, vc.value))
+        mname = f"{mm_side.abbr(std)} = {rc.abbr(std)}" if rc.value is not None else mm_side.abbr(std)
+        return ((mname, mm_side.value), (vc_name, vc.value))
     return ((mm_side.abbr(std), mm_side.value), (lm_side.abbr(std), lm_side.value))
 
 
@@ -656,16 +665,14 @@ def _feature_lines(res: SceneResult, f: Feature, st: FeatureState, role: str) ->
         lines.append(f"  produced {u.fmt(st.size)} ({_size_name(f, st.size, std)})")
     else:
         b = bonus(f, st.size)
-        ta = tolerance_allowed(f, st.size)
         lines.append(f"  produced {u.fmt(st.size)} ({_size_name(f, st.size, std)}),  {term('bonus', std)[0]} {u.fmt(b)}")
-        lines.append(f"  tolerance allowed {u.fmt(f.tolerance.value)} + {u.fmt(b)} = {u.fmt(ta)}"
+        lines.append("  " + tolerance_allowed_derived(f, b).formula(u, std)
                      + ("" if st.share >= 1.0 else f",  {st.share:.0%} used"))
     fr = res.features[f.id]
-    (mname, mval), _ = _boundary_terms(res, f)
     vc = fr.virtual_condition
     if vc.value is not None and f.tolerance is not None and f.tolerance.material is Material.MMC:
         lines.append("  " + vc.formula(u, std))
-    elif mval is not None:
+    else:  # the mating-side boundary (or why there is none), and the VC where it lies elsewhere
         d = fr.inner_boundary if f.kind is Kind.HOLE else fr.outer_boundary
         lines.append("  " + d.formula(u, std))
         if vc.value is not None:
@@ -824,11 +831,11 @@ def _feature_geometry_built(res: SceneResult, f: Feature, st: FeatureState, ex: 
         cage = _cage(zc, ex.r(mval / 2.0), z0, z1, n_rings=3 if is_hole else 2, phase=phase,
                      n_gen=8 if is_hole else 4)
         b.add("vc", f"{tag} {mname}", cage, _line(S.VC, 2.5 if is_hole else 1.8))
-        b.key("VC: worst-case mating boundaries (perfect, normal to A)", S.VC, "vc")
+        b.key(f"{mname}: worst-case mating boundary (perfect, normal to A)", S.VC, "vc")
     if oval is not None:
         cage = _cage(zc, ex.r(oval / 2.0), z0, z1, n_rings=2, phase=phase)
         b.add("rc", f"{tag} {oname}", cage, _line(S.RC, 2.0))
-        b.key("opposite boundaries (RC)", S.RC, "rc")
+        b.key(f"{oname}: opposite worst-case boundary", S.RC, "rc")
 
     return dict(place=place, pts_true=pts_true, axis_true=axis_true, axis_draw=axis_draw, r_true=r_true,
                 r_draw=r_draw, rings_draw=rings_draw, z=(z0, z1), mname=mname, mval=mval, oname=oname,
@@ -957,7 +964,7 @@ def _mate_surface(b: _Built, hole_g: dict, pin: Feature, pin_g: dict, ex: _Ex, u
         spots = [np.unravel_index(int(np.argmin(fgap)), fgap.shape)]
     spots = spots[:2] if len(spots) <= 2 else [spots[0], spots[-1]]
     c_tight = 2.0 * gmin
-    interferes = c_tight < -FIT_SLACK
+    interferes = not fits(c_tight)
     lo, hi = (cmin, cmax) if span is None else (min(span[0], cmin), max(span[1], cmax))
     lo = min(0.0, lo)
     hi = max(hi, lo + abs(lo) * 0.25, 1e-12)
@@ -993,14 +1000,22 @@ def _mate_surface(b: _Built, hole_g: dict, pin: Feature, pin_g: dict, ex: _Ex, u
           dict(color=colour, point_size=16, render_points_as_spheres=True, lighting=False))
     b.add("clearance", "gap at tightest spot", _segments(np.array(ends)), _line(colour, 3.0))
     txt = ("interference " if interferes else "tightest ") + units.fmt(c_tight, signed=True) + f" {units.value}"
-    txt += f" ({abs(gmin):.{units.decimals + 1}f} a side)"
+    txt += f" ({_per_side(units, c_tight)} a side)"
     cx = ex.c
     for p in spot_pts:
         right = (p[0] - cx[0]) * math.cos(math.radians(0)) > 0  # spot on the +x side: text runs left
         b.labels.append(Label(tuple(p), txt, S.INTERFERENCE if interferes else S.TEXT, 16, layer="clearance",
                               justify="right" if right else "left"))
-    bar = dict(title=title, clim=(lo, hi), ticks=_clearance_ticks(lo, hi))
+    ticks = _clearance_ticks(lo, hi)
+    # the tick labels with the digits each tick needs (Units.digits: a 0.0025 step is not shown as 0.003)
+    bar = dict(title=title, clim=(lo, hi), ticks=ticks, fmt=f"%.{max(units.digits(t) for t in ticks)}f")
     return cmin, c_tight, bar
+
+
+def _per_side(units: Units, clearance: float) -> str:
+    """Half of a diametral clearance as it is shown (``Units.fmt`` keeps the digit a half needs:
+    0.005 gives 0.0025), so that twice the per-side value reads as the diametral one."""
+    return units.fmt(abs(float(units.fmt(clearance))) / 2.0)
 
 
 def _clearance_ticks(lo: float, hi: float) -> tuple[float, ...]:
@@ -1215,7 +1230,7 @@ def build_mate_scene(res: SceneResult, mate_index: int, states: dict[str, Featur
         c_formula, assembles = mr.clearance_min, mr.assembles
     else:
         c_formula = clearance_at(hole, pin, hs, ps)
-        assembles = c_formula >= -FIT_SLACK
+        assembles = fits(c_formula)
     verdict = mate_verdict(c_formula, assembles, u)
     if not worst:
         verdict = "what-if: " + verdict.replace(" in the worst case", "")
@@ -1234,7 +1249,11 @@ def build_mate_scene(res: SceneResult, mate_index: int, states: dict[str, Featur
                      f"{u.fmt(effective_size(pin, ps))} = {u.fmt(c_formula, signed=True)} {u.value}")
     if abs(c_tight - c_formula) >= 0.5 * 10 ** -u.decimals:
         lines.append(f"tightest on the picture (tilts as set): {u.fmt(c_tight, signed=True)} {u.value}")
-    lines.append(f"(from sizes alone: {u.fmt(mr.clearance_min_size, signed=True)} {u.value}, hole MMC - pin MMC)")
+    mmc = term("mmc", std)[0]
+    lines.append(f"(from sizes alone: {u.fmt(mr.clearance_min_size, signed=True)} {u.value}, hole {mmc} - pin {mmc})")
+    for f, side in ((hole, res.features[hole.id].inner_boundary), (pin, res.features[pin.id].outer_boundary)):
+        if side.value is None:  # geom's fit takes perfect form there (MateResult.assumptions)
+            lines.append(f"('{f.id}': no {side.abbr(std)} on the {mmc} side; the fit assumes perfect form)")
     b.notes.append("pin drawn on the hole's true position; both seat on datum A")
     return _finish(res, b, ex, sc.title, lines, verdict, verdict_colour, hs.direction_deg, "mate",
                    (hole.id, pin.id), {hole.id: hs, pin.id: ps}, clearance=c_formula,
@@ -1272,9 +1291,10 @@ def _fastener_for(res: SceneResult, f: Feature):
 def _projected_note(b: _Built, res: SceneResult, f: Feature, st: FeatureState, ex: _Ex, centre) -> dict | None:
     """Projected zone: the mating part on the far side of A, with its clearance hole, and the
     fastener along the extended axis, coloured by its clearance to that hole."""
-    u = res.scene.units
+    u, std = res.scene.units, res.scene.standard
     tol = f.tolerance
     P = tol.projected
+    vcn = term("vc_MMC", std)[0]
     place = worst_case_axis(f, st, samples=2)
     shift = np.array([centre[0] - f.at[0], centre[1] - f.at[1], 0.0])
     pts_true = place.points + shift
@@ -1304,7 +1324,7 @@ def _projected_note(b: _Built, res: SceneResult, f: Feature, st: FeatureState, e
     b.add("projected", "mating part", _block_with_hole(rings[0], rings[-1], centre, half, -P, 0.0),
           _surf(S.PROJECTED, 0.10, smooth_shading=False))
     b.add("projected", "mating clearance hole VC", _tube(rings), _surf(S.PROJECTED, 0.22))
-    b.key("mating part: clearance hole at its VC (H - T)", S.PROJECTED, "projected")
+    b.key(f"mating part: clearance hole at its {vcn} (H - T)", S.PROJECTED, "projected")
     # fastener of size F about the extended axis, through the mating part
     fast = Feature(f"{fa.id}", Kind.PIN, (fa.fastener, fa.fastener), P)
     hole_g = dict(z=(-P, 0.0), axis_true_line=np.array([[centre[0], centre[1], -P], [centre[0], centre[1], 0.0]]),
@@ -1318,7 +1338,7 @@ def _projected_note(b: _Built, res: SceneResult, f: Feature, st: FeatureState, e
                                        span=(vc_hole - fa.fastener - t_max, vc_hole - fa.fastener + t_max))
     c = vc_hole - (fa.fastener + place.offset)
     b.notes.append(f"fastener F {u.fmt(fa.fastener)} in the projected zone: envelope F + t = "
-                   f"{u.fmt(fa.fastener + place.offset)}; mating hole VC = H - T = {u.fmt(fa.hole)} - {u.fmt(T)} = "
+                   f"{u.fmt(fa.fastener + place.offset)}; mating hole {vcn} = H - T = {u.fmt(fa.hole)} - {u.fmt(T)} = "
                    f"{u.fmt(vc_hole)}; clearance {u.fmt(c, signed=True)} {u.value}")
     return dict(clearance=c, tight=c_tight, bar=bar, fastener=fa.id)
 
@@ -1336,7 +1356,7 @@ def build_feature_scene(res: SceneResult, feature_id: str, state: FeatureState |
     centre = f.at
     ex = _Ex(k, centre, f.mmc / 2.0)
     b = _Built()
-    u = sc.units
+    u, std = sc.units, sc.standard
     g = _feature_geometry(res, f, st, ex, centre, f.kind.value, b, primary=True)
     half = _part(b, f, g, ex, centre, True)
     _datum(b, f, centre, half, f.length, _symbol_side(st.direction_deg))
@@ -1350,7 +1370,7 @@ def build_feature_scene(res: SceneResult, feature_id: str, state: FeatureState |
         out = _projected_note(b, res, f, st, ex, centre)
         if out is not None:
             clearance, tight, bar = out["clearance"], out["tight"], out["bar"]
-            ok = clearance >= -FIT_SLACK
+            ok = fits(clearance)
             verdict = (("fastener CLEARS the mating hole by " if ok else "fastener JAMS in the mating hole by ")
                        + f"{u.fmt(abs(clearance))} {u.value}" + ("" if worst else " (what-if)"))
             colour = S.OK if ok else S.INTERFERENCE
@@ -1358,6 +1378,9 @@ def build_feature_scene(res: SceneResult, feature_id: str, state: FeatureState |
         (mname, mval), _ = _boundary_terms(res, f)
         if mval is not None:
             verdict = f"worst-case mating boundary {mname} \u00d8{u.fmt(mval)} {u.value}"
+        else:  # no boundary on the mating side: say why (geom's note)
+            fr = res.features[f.id]
+            verdict = (fr.inner_boundary if f.kind is Kind.HOLE else fr.outer_boundary).formula(u, std)
     return _finish(res, b, ex, sc.title, lines, verdict, colour, st.direction_deg, "feature", (f.id,),
                    {f.id: st}, clearance=clearance, tightest=tight, bar=bar)
 
@@ -1366,16 +1389,21 @@ def build_feature_scene(res: SceneResult, feature_id: str, state: FeatureState |
 
 
 def _word(check) -> tuple[str, str]:
-    """(word, colour) for an inspection verdict: conforms / fails / not proven (ISO 14253-1
-    outcome when an uncertainty was given, else the measured values alone)."""
-    out = check.outcome
-    if check.conforms is None or out.startswith("not evaluated"):
-        return "NOT EVALUATED", S.NOT_PROVEN
-    if out.startswith("not proven"):
-        return "NOT PROVEN", S.NOT_PROVEN
-    if out.startswith("nonconformance") or out.startswith("does not") or not check.conforms:
-        return "FAILS", S.INTERFERENCE
-    return "CONFORMS", S.OK
+    """(word, colour) of a check: geom.conformance.verdict_word, the one mapping of a check to
+    its word and colour role, in the picture's colours (style.ROLE_COLOUR)."""
+    word, role = verdict_word(check)
+    return word, S.ROLE_COLOUR[role]
+
+
+def _envelope_names(e, std, hole: bool) -> tuple[str, str]:
+    """(long, short) name of a fitted envelope in the standard's own terms: the long one is
+    geom's name (geom.inspect.envelope_name) with its symbol, the short one for 3D labels."""
+    mm = "minimum material" in e.name
+    abbr = envelope_abbr(std, hole, mm)
+    if std is Standard.ISO:  # "associated cylinder, maximum inscribed (GX), unconstrained"
+        return e.name, f"{abbr}, {e.name.rsplit(', ', 1)[-1]}"
+    related = e.name.startswith("related")
+    return f"{e.name} ({abbr})", f"{'related' if related else 'unrelated'} {abbr}"
 
 
 def _latin(text: str) -> str:
@@ -1461,6 +1489,7 @@ def _zone_placement(f: Feature, insp) -> tuple[np.ndarray | None, str]:
     zz = (-tol.projected, 0.0) if tol.projected else (0.0, f.length)
     at = np.array(f.at, float)
     line = None if insp.axis is None or not len(insp.axis.line) else np.asarray(insp.axis.line, float)
+    what = "median line" if insp.axis is None else insp.axis.basis  # the governing axis reading
     if tol.characteristic is Characteristic.POSITION or line is None:
         where = "at the true position" if tol.characteristic is Characteristic.POSITION else \
             "floating; drawn at the basic location (no median line)"
@@ -1476,11 +1505,11 @@ def _zone_placement(f: Feature, insp) -> tuple[np.ndarray | None, str]:
     if tol.zone is Zone.WIDTH:
         cx = 0.5 * (line[:, 0].min() + line[:, 0].max())
         cy = float(line[:, 1].mean())
-        what = "normal to A" if tol.characteristic is not Characteristic.STRAIGHTNESS else "normal to A (drawn)"
-        return np.array([[cx, cy, zz[0]], [cx, cy, zz[1]]]), f"floating, {what}, centred on the median line's x range"
+        normal = "normal to A" if tol.characteristic is not Characteristic.STRAIGHTNESS else "normal to A (drawn)"
+        return np.array([[cx, cy, zz[0]], [cx, cy, zz[1]]]), f"floating, {normal}, centred on the {what}'s x range"
     cx, cy, _ = F.circumscribed_circle(line[:, :2]) if len(line) >= 2 else (*line[0, :2], 0.0)
     return (np.array([[cx, cy, zz[0]], [cx, cy, zz[1]]]),
-            "floating, normal to A, centred on the smallest circle holding the median line seen along the axis")
+            f"floating, normal to A, centred on the smallest circle holding the {what} seen along the axis")
 
 
 def _inspection_exaggeration(res: SceneResult, insp) -> float:
@@ -1517,12 +1546,19 @@ def build_inspection_scene(res: SceneResult, insp, exaggeration: float | None = 
     Layers: "points" (the measured points, scalars ``radial_deviation``: their true distance from
     the least-squares cylinder, + outward, shown with a diverging colour map symmetric about 0
     and a scalar bar), "median_line" (the section centres as a polyline with its points, and for
-    a projected zone the line the reading was taken on), "envelopes" (the unrelated actual
-    mating envelope as a translucent surface, the related one as a dashed wireframe), "zone"
-    (the tolerance zone at the tolerance allowed: t + the bonus earned; at the true position for
-    position, floating where the axis reading places it for orientation), "zone_axis", "vc"
-    (the virtual-condition boundary, coaxial with the related envelope: the gauge pin that must
-    enter), "datum"; readouts with the numbers and the three verdicts in their colours.
+    a projected zone the line the reading was taken on), "axis" (where it governs, ASME position
+    and orientation: the feature axis, the axis of the unrelated envelope), "envelopes" (the
+    unrelated envelope as a translucent surface, the related one as a dashed wireframe, named in
+    the standard's terms by geom.inspect), "zone" (the tolerance zone at the tolerance allowed:
+    t + the bonus / increase earned; at the true position for position, floating where the
+    governing axis reading places it for orientation), "zone_axis", "vc" (the virtual-condition
+    boundary, coaxial with the related envelope: the gauge pin that must enter), "datum".
+
+    Text: ``verdict`` is geom's one overall verdict, ``insp.verdict.headline`` word for word, in
+    the colour of its role (style.ROLE_COLOUR); ``verdicts`` are the size, axis and surface checks
+    (word and colour role from geom.conformance.verdict_word) and, where there is one, the axis
+    reading that does not govern (labelled so, in a neutral colour); the readouts give both axis
+    readings and which governs (``insp.axis.basis``).
 
     The radial exaggeration k works as in the rest of the module: radii r are drawn as
     R0 + k (r - R0) about R0 = MMC / 2, lateral offsets of axes and centres x k, lengths along
@@ -1590,46 +1626,94 @@ def build_inspection_scene(res: SceneResult, insp, exaggeration: float | None = 
         b.key(f"measured points: radial deviation from the LS cylinder (true, {u.value}; + outward)",
               S.DEVIATION_COLORS[-1], "points")
 
-    # derived median line
+    # the axis readings: the median line (section centres) is always drawn; where the feature
+    # axis (the axis of the unrelated envelope) governs (ASME position and orientation) it is
+    # drawn and labelled as the governing axis. insp.axis is the governing reading.
+    governing = insp.axis
+    gov_basis = None if governing is None else governing.basis
+    other = None
+    if gov_basis == "feature axis":
+        other = insp.median_axis
+    elif gov_basis == "median line":
+        other = insp.feature_axis
+    if other is not None and (other is governing or other.deviation is None):
+        other = None
+    dia = tol is not None and tol.zone is Zone.DIAMETER
+    shape = "\u00d8" if dia else "width "
+    iso = std is Standard.ISO
+    mline = ("extracted" if iso else "derived") + " median line"
+    # the readings and the tolerance allowed are read against each other: formatted together
+    compared = {"governing": None if governing is None else governing.deviation,
+                "other": None if other is None else other.deviation, "allowed": insp.tolerance_allowed}
+    compared = {key: val for key, val in compared.items() if val is not None}
+    shown = dict(zip(compared, u.fmt_cmp(*compared.values())))
+
+    def needs(r) -> str:
+        key = "governing" if r is governing else "other" if r is other else None
+        return f"needs {shape}{shown[key] if key in shown else fmt(r.deviation)}"
+
+    def role_of(basis: str) -> str:
+        if other is None:
+            return ""
+        return " (governs)" if basis == gov_basis else " (does not govern)"
+
+    median = governing if gov_basis == "median line" else insp.median_axis
     if line is not None and len(line):
         dl = ex.pts(np.asarray(line, float))
-        b.add("median_line", "median line", _polyline(dl), _line(S.MEDIAN_LINE, 3.0))
+        mcol = S.AXIS_NOT_GOVERNING if gov_basis == "feature axis" else S.MEDIAN_LINE
+        b.add("median_line", "median line", _polyline(dl), _line(mcol, 3.0))
         b.add("median_line", "median line points", pv.PolyData(dl.copy()),
-              dict(color=S.MEDIAN_LINE, point_size=10, render_points_as_spheres=True, lighting=False))
-        b.key("derived median line (section centres)", S.MEDIAN_LINE, "median_line")
-        ax_line = None if insp.axis is None else np.asarray(insp.axis.line, float)
+              dict(color=mcol, point_size=10, render_points_as_spheres=True, lighting=False))
+        b.key(f"{mline} (section centres)" + role_of("median line").replace(" (", ": ").rstrip(")"), mcol,
+              "median_line")
+        ax_line = None if median is None else np.asarray(median.line, float)
         if tol is not None and tol.projected and ax_line is not None and len(ax_line) >= 2:
             b.add("median_line", "median line extended into the projected zone", _polyline(ex.pts(ax_line)),
                   _line(S.MEDIAN_LINE, 2.0))
         top = dl[-1]
         txt = "median line"
-        if insp.axis is not None and insp.axis.deviation is not None:
-            shape = "\u00d8" if tol is not None and tol.zone is Zone.DIAMETER else "width "
-            txt += f": needs {shape}{fmt(insp.axis.deviation)}"
+        if median is not None and median.deviation is not None:
+            txt += f": {needs(median)}{role_of('median line')}"
         b.labels.append(Label(tuple(top + np.array([0, 0, 0.05 * f.length]) + 0.08 * ex.R0 * v), txt,
-                              S.MEDIAN_LINE, 14, layer="median_line"))
+                              S.TEXT if mcol == S.AXIS_NOT_GOVERNING else mcol, 14, layer="median_line"))
+    if gov_basis == "feature axis" and governing.line is not None and len(governing.line) >= 2:
+        fl = np.asarray(governing.line, float)
+        fl = fl[np.argsort(fl[:, 2])]
+        zz = np.array([min(fl[0, 2], z0), max(fl[-1, 2], z1)])  # over the feature (and the projected zone)
+        fa = ex.pts(_axis_at(fl, zz))
+        b.add("axis", "feature axis", _polyline(fa), _line(S.FEATURE_AXIS, 5.0))
+        b.add("axis", "feature axis ends", _points(fa), dict(color=S.FEATURE_AXIS, point_size=11,
+                                                             render_points_as_spheres=True, lighting=False))
+        env = insp.least_material if tol is not None and tol.material is Material.LMC and \
+            insp.least_material is not None else insp.unrelated
+        of = f" (axis of the {env.name})" if env is not None else ""
+        b.key(f"feature axis{of}: governs", S.FEATURE_AXIS, "axis")
+        txt = "feature axis" + (f": {needs(governing)}" if governing.deviation is not None else "") + " (governs)"
+        p = ex.pts(_axis_at(fl, np.array([0.12 * f.length])))[0]
+        b.labels.append(Label(tuple(p + 0.10 * ex.R0 * v), txt, S.FEATURE_AXIS, 14, layer="axis"))
 
     # the envelopes
     zs = np.array([z0, z1])
     labels_at = iter(((0.30, 28.0), (0.55, 0.0), (0.80, -28.0)))  # (height / length, angle from the tilt)
     if insp.unrelated is not None:
         e = insp.unrelated
+        long, short = _envelope_names(e, std, hole)
         rings = _rings(ex.pts(_env_axis(e, zs)), ex.r(e.diameter / 2.0))
         b.add("envelopes", "unrelated envelope", _tube(rings), _surf(S.ENVELOPE, 0.22, specular=0.0))
-        name = "AMME" if e.name.find("minimum material") >= 0 else "AME"
-        b.key(f"unrelated {name} \u00d8{fmt(e.diameter)} (any orientation)", S.ENVELOPE, "envelopes")
+        b.key(f"{long} \u00d8{fmt(e.diameter)}", S.ENVELOPE, "envelopes")
         h, a = next(labels_at)
         p = ex.pts(np.array([[*e.at_z(h * f.length), h * f.length]]))[0] + side(a) * ex.r(e.diameter / 2.0)
-        b.labels.append(Label(tuple(p), f"unrelated {name} \u00d8{fmt(e.diameter)}", S.TEXT, 14, layer="envelopes"))
+        b.labels.append(Label(tuple(p), f"{short} \u00d8{fmt(e.diameter)}", S.TEXT, 14, layer="envelopes"))
     if insp.related is not None:
         e = insp.related
+        long, short = _envelope_names(e, std, hole)
         axis_d = ex.pts(_env_axis(e, zs))
         b.add("envelopes", "related envelope", _dashed_cage(axis_d, ex.r(e.diameter / 2.0), phase=phi),
               _line(S.ENVELOPE_RELATED, 2.5))
-        b.key(f"related AME \u00d8{fmt(e.diameter)} (held to A), dashed", S.ENVELOPE_RELATED, "envelopes")
+        b.key(f"{long} \u00d8{fmt(e.diameter)}, dashed", S.ENVELOPE_RELATED, "envelopes")
         h, a = next(labels_at)
         p = ex.pts(np.array([[*e.at_z(h * f.length), h * f.length]]))[0] + side(a) * ex.r(e.diameter / 2.0)
-        b.labels.append(Label(tuple(p), f"related AME \u00d8{fmt(e.diameter)}", S.ENVELOPE_RELATED, 14,
+        b.labels.append(Label(tuple(p), f"{short} \u00d8{fmt(e.diameter)}", S.ENVELOPE_RELATED, 14,
                               layer="envelopes"))
 
     # the tolerance zone at the tolerance allowed
@@ -1643,20 +1727,22 @@ def build_inspection_scene(res: SceneResult, insp, exaggeration: float | None = 
             half_y = ex.R0 * 1.15
             cx, cy = ad[0, 0], ad[0, 1]
             mesh = pv.Box(bounds=(cx - w, cx + w, cy - half_y, cy + half_y, ad[0, 2], ad[1, 2]))
-            shape = f"{fmt(t)} wide"
+            zshape = f"{fmt(t)} wide"
         else:
             mesh = _tube(_rings(ad, max(ex.k * t / 2.0, 1e-12), N_PHI), caps=True)
-            shape = f"\u00d8{fmt(t)}"
+            zshape = f"\u00d8{fmt(t)}"
         b.add("zone", "zone (tolerance allowed)", mesh, _surf(colour, S.ZONE_OPACITY,
                                                                smooth_shading=tol.zone is not Zone.WIDTH))
-        b.key(f"tolerance zone {shape} = t + bonus" + (" (projected)" if proj else ""), colour, "zone")
-        b.notes.append(f"zone {shape}: {zone_where}")
+        formula = (tolerance_allowed_derived(f, insp.bonus).formula(u, std) if insp.bonus is not None
+                   else f"tolerance allowed {fmt(t)}")
+        b.key(f"tolerance zone {zshape}: {formula}" + (" (projected)" if proj else ""), colour, "zone")
+        b.notes.append(f"zone {zshape}: {zone_where}")
         ext = 0.08 * (ad[1, 2] - ad[0, 2])
         za = _axis_at(ad, np.array([min(ad[0, 2], 0.0) - ext, max(ad[1, 2], f.length) + ext]))
         b.add("zone_axis", "zone axis", _polyline(za), _line(S.ZONE_AXIS, 1.5))
         b.key("zone axis (" + ("true position" if tol.characteristic is Characteristic.POSITION else "floating")
               + ")", S.ZONE_AXIS, "zone_axis")
-        b.labels.append(Label(tuple(za[0] - v * (ex.k * t / 2.0 + 0.08 * ex.R0)), f"zone {shape} allowed",
+        b.labels.append(Label(tuple(za[0] - v * (ex.k * t / 2.0 + 0.08 * ex.R0)), f"zone {zshape} allowed",
                               S.ZONE_AXIS, 14, layer="zone"))
 
     # the virtual condition boundary (the gauge), where the related envelope sits
@@ -1696,26 +1782,53 @@ def build_inspection_scene(res: SceneResult, insp, exaggeration: float | None = 
             how = f"tilt {e.tilt_deg:.3f} deg" if e.constraint != "typed value" else "typed"
             if e.constraint.startswith("normal to A"):
                 how = e.constraint.split(";")[0]
-            short = e.name.replace("actual mating envelope", "AME").replace("actual minimum material envelope", "AMME")
-            lines.append(f"  {short} \u00d8{fmt(e.diameter)}  ({how})")
+            lines.append(f"  {_envelope_names(e, std, hole)[1]} \u00d8{fmt(e.diameter)}  ({how})")
     if insp.bonus is not None:
-        lines.append(f"  bonus basis: {insp.bonus_basis} envelope")
+        B = term("bonus", std)[0]
+        basis = insp.bonus_basis
+        if iso:
+            basis = {"unrelated": "unconstrained", "related": "constrained"}.get(basis, basis) + " associated cylinder"
+        else:
+            basis += " envelope"
+        lines.append(f"  {B} basis: {basis}")
     lines += [f"  {_latin(x)}" for x in insp.formulas]
-    if insp.axis is not None and insp.axis.deviation is not None:
-        shape = "\u00d8" if tol is not None and tol.zone is Zone.DIAMETER else "width "
-        allowed = "" if insp.tolerance_allowed is None else f" (tolerance allowed {fmt(insp.tolerance_allowed)})"
-        lines.append(f"  axis reading: median line needs {shape}{fmt(insp.axis.deviation)}{allowed}")
+    allowed = shown.get("allowed", "")
+    if governing is not None and governing.deviation is not None:
+        if other is None:
+            lines.append(f"  axis reading: {governing.basis} {needs(governing)}"
+                         + (f" (tolerance allowed {allowed})" if allowed else ""))
+        else:
+            lines.append("  axis readings" + (f" (tolerance allowed {allowed})" if allowed else "") + ":")
+            lines.append(f"    {governing.basis} {needs(governing)} (governs)")
+            lines.append(f"    {other.basis} {needs(other)} (does not govern)")
+    checks = [(insp.size_check, None), (insp.axis_check, None), (insp.surface_check, None)]
+    if insp.other_axis_check is not None:
+        checks.append((insp.other_axis_check, "does not govern"))
+    wide = max(len(_word(c)[0]) for c, _ in checks) + 2
     verdicts = []
-    checks = (insp.size_check, insp.axis_check, insp.surface_check)
-    wide = max(len(_word(c)[0]) for c in checks) + 2
-    for c in checks:
+    for c, tag in checks:
         word, colour = _word(c)
-        how = {"conformance proven": "proven", "nonconformance proven": "proven"}.get(c.outcome, c.outcome)
-        verdicts.append((_latin(f"{c.name:<8}{word:<{wide}}{c.detail}  [{how}]"), colour))
-    if insp.explanation and insp.axis_check.conforms is not None and insp.surface_check.conforms is not None \
-            and insp.axis_check.conforms != insp.surface_check.conforms:
+        name = "axis" if tag else c.name
+        text = f"{name:<8}{word:<{wide}}{c.detail}"
+        if c.evaluated and (c.uncertainty is None or c.outcome is Outcome.NOT_PROVEN):
+            # with U stated, CONFORMS / DOES NOT CONFORM already say "proven"
+            text += f"  [{c.outcome_text if c.uncertainty is not None else c.rule}]"
+        if tag:  # the reading that does not govern: shown for information, in a neutral colour
+            text += f"  {tag}"
+            colour = S.NEUTRAL
+        verdicts.append((_latin(text), colour))
+    pv_ = insp.verdict
+    headline, head_colour = ("", S.TEXT) if pv_ is None else (_latin(pv_.headline), S.ROLE_COLOUR[pv_.role])
+    if pv_ is not None:
+        if pv_.why:  # which readings decide the headline, and why
+            verdicts.append((_latin(pv_.why), S.TEXT))
+        b.notes += [_latin(n) for n in pv_.notes]
+    if insp.axis_governs:
+        b.notes.append(_latin(insp.axis_governs))
+    if insp.explanation and readings_disagree(insp.axis_check, insp.surface_check):
         b.notes.append(_latin(insp.explanation[0]))
-    sc3 = _finish(res, b, ex, sc.title, lines, "", S.TEXT, direction_deg, "inspection", (f.id,), {}, bar=bar)
+    sc3 = _finish(res, b, ex, sc.title, lines, headline, head_colour, direction_deg, "inspection", (f.id,), {},
+                  bar=bar)
     if k == 1.0:
         caption = "TRUE SCALE\nradial deviations x 1 (no exaggeration)"
     else:

@@ -35,7 +35,9 @@ NOT_PROVEN = "#8A5A00"  # inspection verdict neither proven nor disproven / not 
 ENVELOPE = "#56626E"  # unrelated actual mating envelope of a measured feature, translucent (0.12)
 ENVELOPE_RELATED = "#C77C00"  # related actual mating envelope (held to the datum), dashed wireframe (0.29)
 MEDIAN_LINE = AXIS  # derived median line (section centres) of a measured feature
+FEATURE_AXIS = AXIS  # feature axis (axis of the unrelated envelope) of a measured feature, where it governs
 NEUTRAL = "#56626E"  # a check that was not evaluated (no colour claims a verdict)
+AXIS_NOT_GOVERNING = NEUTRAL  # an axis reading shown beside the governing one (it does not govern)
 
 # Colour of each verdict role of geom.conformance.verdict_word (the one mapping of verdicts to
 # colours; the window uses the same roles with its own banner backgrounds).
