@@ -20,7 +20,9 @@ from PyQt5.QtCore import QObject, QThread, pyqtSignal, pyqtSlot
 from PyQt5.QtWidgets import QUndoCommand, QUndoStack
 
 from geom import boundaries as B
-from geom.analysis import Derived, SceneResult, analyse_scene, clearance_at, mate_verdict, term
+from geom.analysis import (
+    Derived, SceneResult, analyse_scene, clearance_at, fits, mate_verdict, term, tolerance_allowed_derived,
+)
 from geom.model import Feature, Material, Scene
 from geom.scenefile import SceneError, dumps, load, parse, save
 
@@ -48,8 +50,10 @@ def new_scene() -> Scene:
         "units": "mm",
         "standard": "asme",
         "feature": [
+            # position needs datums that locate the axis (A alone only orients): A | B | C
             {"id": "hole-1", "kind": "hole", "limits": [10.0, 10.02], "length": 10.0,
-             "tolerance": {"characteristic": "position", "value": 0.05, "material": "MMC", "datums": ["A"]}},
+             "tolerance": {"characteristic": "position", "value": 0.05, "material": "MMC",
+                           "datums": ["A", "B", "C"]}},
             {"id": "pin-1", "kind": "pin", "limits": [9.96, 9.98], "length": 10.0,
              "tolerance": {"characteristic": "perpendicularity", "value": 0.01, "material": "MMC",
                            "datums": ["A"]}},
@@ -60,6 +64,11 @@ def new_scene() -> Scene:
 
 
 # ---------------------------------------------------------------- what-if readouts (no Qt)
+
+
+def _plain(v: float, decimals: int = 1) -> str:
+    """A percentage or angle as the what-if controls set it (one decimal), without a trailing .0."""
+    return f"{v:.{decimals}f}".rstrip("0").rstrip(".")
 
 
 @dataclass(frozen=True)
@@ -78,8 +87,8 @@ def whatif_rows(res: SceneResult, fid: str, state: B.FeatureState) -> list[Row]:
     f = r.feature
     tol = f.tolerance
     mmc_abbr, lmc_abbr = term("mmc", st)[0], term("lmc", st)[0]
-    rows = [Row("produced size", u.fmt(state.size),
-                f"between {mmc_abbr} {u.fmt(f.mmc)} and {lmc_abbr} {u.fmt(f.lmc)}")]
+    mmc_s, lmc_s = u.fmt_cmp(f.mmc, f.lmc)  # compared with each other: never printed equal
+    rows = [Row("produced size", u.fmt(state.size), f"between {mmc_abbr} {mmc_s} and {lmc_abbr} {lmc_s}")]
     b = B.bonus(f, state.size)
     bname = term("bonus", st)[0]
     if tol is None:
@@ -95,10 +104,11 @@ def whatif_rows(res: SceneResult, fid: str, state: B.FeatureState) -> list[Row]:
     ta = B.tolerance_allowed(f, state.size)
     if tol is not None:
         rows.append(Row("tolerance allowed at this size", u.fmt(ta),
-                        f"t + {bname} = {u.fmt(tol.value)} + {u.fmt(b)} = {u.fmt(ta)}"))
+                        tolerance_allowed_derived(f, b).formula(u, st)))
         used = state.share * ta
         rows.append(Row("tolerance used", u.fmt(used),
-                        f"{state.share * 100:.0f} % of {u.fmt(ta)}, tilted toward {state.direction_deg:.0f} deg"))
+                        f"{_plain(state.share * 100)} % of {u.fmt(ta)}, tilted toward "
+                        f"{_plain(state.direction_deg)} deg"))
         tilt = B.tilt_angle_deg(f, used)
         if tilt is not None:
             rows.append(Row("axis tilt", f"{tilt:.4f} deg",
@@ -136,9 +146,9 @@ def mate_verdict_at(res: SceneResult, mate_index: int, states: dict[str, B.Featu
     m = res.mates[mate_index]
     hole, pin = sc.feature(m.hole), sc.feature(m.pin)
     c = clearance_at(hole, pin, states[m.hole], states[m.pin])
-    fits = c >= -1e-9
-    headline = mate_verdict(c, fits, u).replace(" in the worst case", " at the sizes set")
-    return Verdict(fits, headline, mate_verdict(m.clearance_min, m.assembles, u),
+    ok = fits(c)  # geom's one fit predicate (line-to-line included)
+    headline = mate_verdict(c, ok, u).replace(" in the worst case", " at the sizes set")
+    return Verdict(ok, headline, mate_verdict(m.clearance_min, m.assembles, u),
                    mate_formula(m, u, sc.standard), c)
 
 
@@ -170,6 +180,18 @@ def points_source(scene: Scene, fid: str, points: str | None = None) -> tuple[st
         return str(path), path.stat().st_mtime
     except OSError:
         return str(path), None
+
+
+def scene_folder(scene: Scene) -> Path:
+    """The folder a scene's points files must lie in (geom.inspect reads no file outside it)."""
+    return (Path(scene.source).parent if scene.source else Path.cwd()).resolve()
+
+
+def points_outside(scene: Scene, fid: str) -> bool:
+    """True when the feature's recorded points file lies outside the scene's folder: geom.inspect
+    refuses to read it from the scene file (a scene must not make the program read any file)."""
+    path, _ = points_source(scene, fid)
+    return path is not None and not Path(path).is_relative_to(scene_folder(scene))
 
 
 def has_measured(scene: Scene, fid: str) -> bool:
@@ -255,7 +277,7 @@ class SceneModel(QObject):
         self.result: SceneResult = analyse_scene(self.scene)
         self.path: str | None = path
         self.states: dict[str, B.FeatureState] = {}
-        self.focus: tuple[str, object] = ("feature", self.scene.features[0].id)
+        self.focus: tuple[str, object] = ("none", None)
         self._reset_states()
         self._default_focus()
         # inspection: the last valid result shown, the key it was computed for, the request out
@@ -266,6 +288,9 @@ class SceneModel(QObject):
         self._token = 0
         self._recording = False
         self._pending: dict | None = None  # the request in flight
+        # points files the user picked in this window (resolved): one outside the scene's folder
+        # is handed to geom explicitly, as `matezone inspect --points` does
+        self._picked: set[str] = set()
         self._ithread: QThread | None = None
         self._iworker: InspectionWorker | None = None
 
@@ -283,12 +308,20 @@ class SceneModel(QObject):
         return scene_label(self.path)
 
     def focus_features(self) -> list[str]:
-        """Ids of the features whose what-if controls belong to the current focus."""
+        """Ids of the features whose what-if controls belong to the current focus (none for a
+        fastener: a fastener pattern has no what-if state)."""
         kind, key = self.focus
         if kind == "mate":
             m = self.scene.mates[key]
             return [m.hole, m.pin]
-        return [key]
+        if kind in ("feature", "inspection"):
+            return [key]
+        return []
+
+    def focus_fastener(self) -> str | None:
+        """The fastener looked at, or None."""
+        kind, key = self.focus
+        return key if kind == "fastener" else None
 
     def focus_inspection(self) -> str | None:
         """The feature whose inspection is looked at, or None."""
@@ -307,7 +340,7 @@ class SceneModel(QObject):
         kind, key = self.focus
         if kind == "mate":
             return key
-        if kind == "inspection":
+        if kind != "feature":
             return None
         for i, m in enumerate(self.scene.mates):
             if key in (m.hole, m.pin):
@@ -320,6 +353,10 @@ class SceneModel(QObject):
         if kind == "mate" and not (isinstance(key, int) and 0 <= key < len(self.scene.mates)):
             return
         if kind in ("feature", "inspection") and key not in {f.id for f in self.scene.features}:
+            return
+        if kind == "fastener" and key not in {fa.id for fa in self.scene.fasteners}:
+            return
+        if kind not in ("mate", "feature", "inspection", "fastener"):
             return
         if (kind, key) != self.focus:
             self.focus = (kind, key)
@@ -370,7 +407,28 @@ class SceneModel(QObject):
         return worst_case_state(f, in_mate)
 
     def _default_focus(self) -> None:
-        self.focus = ("mate", 0) if self.scene.mates else ("feature", self.scene.features[0].id)
+        """The first mate, else the first feature, else the first fastener (a scene may hold
+        fastener tables only)."""
+        sc = self.scene
+        if sc.mates:
+            self.focus = ("mate", 0)
+        elif sc.features:
+            self.focus = ("feature", sc.features[0].id)
+        elif sc.fasteners:
+            self.focus = ("fastener", sc.fasteners[0].id)
+        else:
+            self.focus = ("none", None)
+
+    def _focus_valid(self) -> bool:
+        kind, key = self.focus
+        sc = self.scene
+        if kind == "mate":
+            return isinstance(key, int) and 0 <= key < len(sc.mates)
+        if kind in ("feature", "inspection"):
+            return key in {f.id for f in sc.features}
+        if kind == "fastener":
+            return key in {fa.id for fa in sc.fasteners}
+        return False
 
     # ------------------------------------------------------------ edits
 
@@ -397,9 +455,7 @@ class SceneModel(QObject):
         self.scene = scene
         self.result = analyse_scene(scene)
         self._reset_states()
-        kind, key = self.focus
-        if (kind == "mate" and key >= len(scene.mates)) or (
-                kind in ("feature", "inspection") and key not in {f.id for f in scene.features}):
+        if not self._focus_valid():
             self._default_focus()
         self.sceneChanged.emit()
         self.statesChanged.emit()
@@ -414,6 +470,7 @@ class SceneModel(QObject):
         self._token += 1  # answers to requests about the old scene are dropped
         self._pending = None
         self.inspection, self.inspection_key = None, None
+        self._picked = set()
         self.undo_stack.clear()
         self.path = path
         self.states = {}
@@ -446,6 +503,9 @@ class SceneModel(QObject):
         self.undo_stack.setClean()
         self.dirtyChanged.emit(False)
         self.message.emit("info", f"saved {self.path}")
+        for f in self.scene.features:
+            if points_outside(self.scene, f.id):
+                self.message.emit("info", self._outside_warning(f.id))
 
     def _rebase_points(self, scene: Scene, target: str) -> Scene:
         """The scene with each relative points file rewritten relative to ``target``'s folder
@@ -495,7 +555,17 @@ class SceneModel(QObject):
             self.message.emit("info", f"{fid} has no measured data yet: use File > Load measured points… "
                                       "to read a CSV of points for it")
             return
+        path, _ = points_source(self.scene, fid)
+        if path is not None and path in self._picked and points_outside(self.scene, fid):
+            self._submit(fid, path, record=False)
+            return
         self._submit(fid, None, record=False)
+
+    def _outside_warning(self, fid: str) -> str:
+        path, _ = points_source(self.scene, fid)
+        return (f"note: {path} is outside the scene's folder {scene_folder(self.scene)}: this window reads it "
+                "because you picked it, but a scene file may only name points inside its own folder; copy "
+                "the file there (or give it with `matezone inspect --points`)")
 
     def load_points(self, fid: str, path: str) -> None:
         """Inspect ``fid`` from the CSV ``path``. When it can be used, the path is recorded in the
@@ -504,6 +574,7 @@ class SceneModel(QObject):
         if fid not in {f.id for f in self.scene.features}:
             self.message.emit("error", f"no feature {fid!r} to load points for")
             return
+        self._picked.add(str(Path(path).resolve()))
         self._submit(fid, str(path), record=True)
 
     def _submit(self, fid: str, points: str | None, record: bool) -> None:
@@ -568,6 +639,8 @@ class SceneModel(QObject):
         if req["record"]:
             n = 0 if res.points is None else len(res.points)
             self.message.emit("info", f"{n} measured points of {req['fid']} read from {req['points']}")
+            if points_outside(self.scene, req["fid"]):
+                self.message.emit("info", self._outside_warning(req["fid"]))
         if self.focus != ("inspection", req["fid"]):
             self.focus = ("inspection", req["fid"])
             self.focusChanged.emit()

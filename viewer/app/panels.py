@@ -16,6 +16,7 @@ from PyQt5.QtWidgets import (
 )
 
 from geom.analysis import term
+from geom.conformance import verdict_word
 from geom.model import Characteristic, Kind, Material, Standard, Units, Zone
 from geom.readout import STANDARD_NAME, feature_heading, feature_rows
 from geom.scenefile import SceneError
@@ -23,13 +24,21 @@ from geom.scenefile import SceneError
 from .glyphs import mono_css, ui_text
 from .model import SceneModel, feature_index, mate_verdict_at, rename_in_mates, whatif_rows
 
-ERROR_STYLE = "border: 2px solid #c62828; background: #fff3f3;"
 from viewer import style
 
-OK_GREEN, BAD_RED, NEUTRAL = style.OK, style.INTERFERENCE, "#455a64"
-# conforms by the governing reading while another reading fails: neither the green of a clean pass
-# nor the red of a failure (text on AMBER_BG: contrast 5.3:1)
-AMBER, AMBER_BG = "#9A5200", "#fff3e0"
+ERROR_STYLE = "border: 2px solid #c62828; background: #fff3f3;"
+
+# The one mapping of verdict roles (geom.conformance.verdict_word, PartVerdict.role) to the
+# window's looks: (text and border colour, background, mark). The colours are the PDF's
+# (viewer.style.ROLE_COLOUR), so the banner and the report headline look alike; a mate's fit
+# uses the same roles (assembles: "ok", interferes: "fail", nothing to judge: "none").
+ROLE_LOOK = {
+    "ok": (style.ROLE_COLOUR["ok"], "#e8f5e9", "✔"),
+    "fail": (style.ROLE_COLOUR["fail"], "#ffebee", "✖"),
+    "unproven": (style.ROLE_COLOUR["unproven"], "#fff3e0", "?"),
+    "none": (style.ROLE_COLOUR["none"], "#eceff1", "–"),
+}
+OK_GREEN, BAD_RED, NEUTRAL = ROLE_LOOK["ok"][0], ROLE_LOOK["fail"][0], ROLE_LOOK["none"][0]
 
 
 def _text_value(text: str):
@@ -112,7 +121,8 @@ class MessageBar(QFrame):
 
 
 class ContentsList(QWidget):
-    """The mates and features of the scene; picking one focuses the views and the editor."""
+    """The mates, features, inspections and fasteners of the scene; picking one focuses the
+    views and the editor."""
 
     def __init__(self, model: SceneModel, parent=None):
         super().__init__(parent)
@@ -159,6 +169,11 @@ class ContentsList(QWidget):
             it.setData(Qt.UserRole, ("inspection", f.id))
             it.setToolTip(f"The produced {f.kind.value} {f.id} judged from its measured data")
             self.list.addItem(it)
+        for fa in sc.fasteners:
+            it = QListWidgetItem(f"fastener {fa.id} ({fa.kind})")
+            it.setData(Qt.UserRole, ("fastener", fa.id))
+            it.setToolTip(f"Position tolerance of the {fa.kind}-fastener pattern {fa.id} (edit it in the scene file)")
+            self.list.addItem(it)
         self.list.blockSignals(False)
         self._select_focus()
 
@@ -190,7 +205,7 @@ class ContentsList(QWidget):
             lim = list(ref.limits)
 
         def mutate(d):
-            d["feature"].append({"id": fid, "kind": kind, "limits": lim, "length": length})
+            d.setdefault("feature", []).append({"id": fid, "kind": kind, "limits": lim, "length": length})
 
         self._report(self.model.try_edit(mutate, f"add {kind} {fid}"))
         self.model.set_focus("feature", fid)
@@ -216,9 +231,16 @@ class ContentsList(QWidget):
         if kind == "mate":
             self._report(self.model.try_edit(lambda d: d["mate"].pop(key), f"remove mate {key + 1}"))
             return
+        if kind == "fastener":
+            self._report(self.model.try_edit(
+                lambda d: d.__setitem__("fastener", [x for x in d.get("fastener", []) if x["id"] != key]),
+                f"remove fastener {key}"))
+            return
+        if kind != "feature":
+            return
 
         def mutate(d):
-            d["feature"] = [f for f in d["feature"] if f["id"] != key]
+            d["feature"] = [f for f in d.get("feature", []) if f["id"] != key]
             d["mate"] = [m for m in d.get("mate", []) if key not in (m["hole"], m["pin"])]
 
         self._report(self.model.try_edit(mutate, f"remove {key}"))
@@ -412,8 +434,7 @@ class FeatureForm(_Form):
         tl.addRow("Zone", self._choice("tolerance.zone", [z.value for z in Zone],
                                        ["diameter (cylinder)", "width (two planes)"]))
         tl.addRow("Value t", self._line("tolerance.value", "Stated tolerance (zone size)"))
-        tl.addRow("Material condition", self._choice("tolerance.material", [m.value for m in Material],
-                                                     ["MMC (M)", "LMC (L)", "RFS (no modifier)"]))
+        tl.addRow("Material condition", self._choice("tolerance.material", [m.value for m in Material]))
         tl.addRow("Datums", self._line("tolerance.datums", "Datum letters in order, e.g. A, B"))
         tl.addRow("Projected zone", self._line("tolerance.projected", "Projected height beyond A (empty: none)"))
         tl.addRow("Basic angle", self._line("tolerance.angle", "Angle to datum A in degrees (angularity only)"))
@@ -443,15 +464,38 @@ class FeatureForm(_Form):
 
     def _focus(self) -> None:
         kind, key = self.model.focus
-        fid = key if kind in ("feature", "inspection") else self.model.scene.mates[key].hole
+        if kind in ("feature", "inspection"):
+            fid = key
+        elif kind == "mate":
+            fid = self.model.scene.mates[key].hole
+        else:  # a fastener: the form keeps the feature it shows
+            fid = self.fid
         if fid != self.fid or not self.has_error():
             self.fid = fid
             self.fill()
 
+    def _material_labels(self, st: Standard) -> None:
+        """The material-condition choices in the scene's standard's terms (MMC / MMS ...)."""
+        c = self.fields["tolerance.material"]
+        labels = {Material.MMC.value: f"{term('mmc', st)[0]} (M)", Material.LMC.value: f"{term('lmc', st)[0]} (L)",
+                  Material.RFS.value: f"{term('rfs', st)[0]} (no modifier)"}
+        for i in range(c.count()):
+            text = labels.get(c.itemData(i))
+            if text and c.itemText(i) != text:
+                c.setItemText(i, text)
+
     def fill(self) -> None:
         sc = self.model.scene
         if self.fid not in {f.id for f in sc.features}:
-            self.fid = sc.features[0].id
+            self.fid = sc.features[0].id if sc.features else None
+        self._material_labels(sc.standard)
+        if self.fid is None:  # a scene of fasteners only: nothing to edit here
+            self.setEnabled(False)
+            self.heading.setText("No feature in this scene: add a hole or a pin in the scene contents. "
+                                 "Fasteners are edited in the scene file.")
+            self.mark(None, None)
+            return
+        self.setEnabled(True)
         f = sc.feature(self.fid)
         r = self.model.result.features[f.id]
         u = sc.units
@@ -554,21 +598,30 @@ class FeatureForm(_Form):
 # ---------------------------------------------------------------- what-if controls
 
 
+def length_decimals(units: Units, *values: float) -> int:
+    """Decimals that show every one of ``values`` and keep unequal ones apart: those of
+    :meth:`geom.model.Units.fmt_cmp` (an inch feature with limits 0.25000 .. 0.25015 needs 5)."""
+    shown = units.fmt_cmp(*values) if values else (units.fmt(0.0),)
+    return max(len(t.partition(".")[2]) for t in shown)
+
+
 class LengthSpin(QDoubleSpinBox):
-    """A spin box that shows a length at the scene's display precision (mm 3 decimals, in 4, as
-    :meth:`geom.model.Units.fmt`) but keeps finer typed values (up to 6 decimals); the exact
-    value is in the tooltip."""
+    """A spin box that shows a length with at least ``display`` decimals (those that keep the
+    feature's limits apart, :func:`length_decimals`), and more where a value needs them not to be
+    hidden (:meth:`geom.model.Units.digits`); finer typed values are kept (the exact value is in
+    the tooltip)."""
 
-    STORED = 6
-
-    def __init__(self, display: int, parent=None):
+    def __init__(self, display: int, units: Units | None = None, parent=None):
         super().__init__(parent)
         self.display = display
-        self.setDecimals(max(self.STORED, display))
+        self.units = units
+        extra = 3  # Units.digits extends a value by up to three decimals
+        self.setDecimals(max(6, display + extra, (units.decimals if units else 0) + extra))
         self.valueChanged.connect(lambda v: self.setToolTip(f"{v:.{self.decimals()}f}".rstrip("0").rstrip(".")))
 
     def textFromValue(self, v: float) -> str:
-        return f"{v:.{self.display}f}"
+        k = max(self.display, self.units.digits(v)) if self.units is not None else self.display
+        return f"{v:.{k}f}"
 
 
 class _SliderSpin(QWidget):
@@ -578,7 +631,7 @@ class _SliderSpin(QWidget):
     STEPS = 1000
 
     def __init__(self, lo: float, hi: float, decimals: int, suffix: str = "", left="", right="", parent=None,
-                 length: bool = False):
+                 length: bool = False, units: Units | None = None):
         super().__init__(parent)
         self.lo, self.hi = lo, hi
         lay = QGridLayout(self)
@@ -586,7 +639,7 @@ class _SliderSpin(QWidget):
         self.slider = QSlider(Qt.Horizontal)
         self.slider.setRange(0, self.STEPS)
         if length:  # shown at ``decimals``, finer typed values kept; steps of the last shown digit
-            self.spin = LengthSpin(decimals)
+            self.spin = LengthSpin(decimals, units)
             self.spin.setSingleStep(10.0 ** -decimals)
         else:
             self.spin = QDoubleSpinBox()
@@ -647,11 +700,13 @@ class FeatureControls(QGroupBox):
         st = model.scene.standard
         lay = QFormLayout(self)
         mm, lm = term("mmc", st)[0], term("lmc", st)[0]
-        # the slider runs from MMC (left) to LMC (right) whichever way the size grows
-        self.size = _SliderSpin(min(f.mmc, f.lmc), max(f.mmc, f.lmc), u.decimals, f" {u.value}",
-                                f"{mm} {u.fmt(f.mmc)}", f"{lm} {u.fmt(f.lmc)}", length=True)
+        # the slider runs from MMC (left) to LMC (right) whichever way the size grows; the limits
+        # are shown with the decimals that keep them apart
+        mmc_s, lmc_s = u.fmt_cmp(f.mmc, f.lmc)
+        self.size = _SliderSpin(min(f.mmc, f.lmc), max(f.mmc, f.lmc), length_decimals(u, f.mmc, f.lmc),
+                                f" {u.value}", f"{mm} {mmc_s}", f"{lm} {lmc_s}", length=True, units=u)
         self.size.slider.setInvertedAppearance(f.mmc > f.lmc)
-        self.size.slider.setToolTip("Left: MMC (smallest hole / largest pin), right: LMC")
+        self.size.slider.setToolTip(f"Left: {mm} (smallest hole / largest pin), right: {lm}")
         self.direction = _SliderSpin(0.0, 360.0, 1, " deg")
         self.share = _SliderSpin(0.0, 100.0, 1, " %")
         self.size.valueChanged.connect(lambda v: model.set_state(fid, size=v))
@@ -757,11 +812,11 @@ class WhatIfPanel(QWidget):
         self.lay = QVBoxLayout(self)
         self.lay.setContentsMargins(0, 0, 0, 0)
         head = QHBoxLayout()
-        hint = QLabel("Move a size from MMC toward LMC: the bonus grows, the VC stays put.")
+        hint = QLabel(self._hint())
         hint.setWordWrap(True)
         hint.setStyleSheet("color: #546e7a;")
         reset = QPushButton("Worst case")
-        reset.setToolTip("Every feature at MMC, all of the allowed tolerance used")
+        reset.setToolTip("Every feature at maximum material, all of the allowed tolerance used")
         reset.clicked.connect(model.reset_states)
         head.addWidget(hint, 1)
         head.addWidget(reset)
@@ -776,10 +831,17 @@ class WhatIfPanel(QWidget):
         model.statesChanged.connect(self.sync)
         self.rebuild(force=True)
 
+    def _hint(self) -> str:
+        """The what-if hint in the scene's standard's terms."""
+        st = self.model.scene.standard
+        mm, lm, b = term("mmc", st)[0], term("lmc", st)[0], term("bonus", st)[0]
+        return f"Move a size from {mm} toward {lm}: the {b} grows, the {term('vc_MMC', st)[0]} stays put."
+
     def rebuild(self, force: bool = False) -> None:
         fids = tuple(self.model.focus_features())
         insp = self.model.focus_inspection()
-        key = (fids, self.model.scene.units, insp)
+        fast = self.model.focus_fastener()
+        key = (fids, self.model.scene.units, self.model.scene.standard, insp, fast)
         if key == self._shown and not force:
             return
         self._shown = key
@@ -791,10 +853,18 @@ class WhatIfPanel(QWidget):
             g.deleteLater()
         self.groups = {}
         self.inspection = None
-        self.hint.setText("The measured part is judged as produced: no what-if here. Pick a mate or a "
-                          "feature in the list above to try sizes." if insp else
-                          "Move a size from MMC toward LMC: the bonus grows, the VC stays put.")
+        if insp:
+            hint = ("The measured part is judged as produced: no what-if here. Pick a mate or a "
+                    "feature in the list above to try sizes.")
+        elif fast:
+            hint = (f"Fastener {fast}: its position tolerance follows from the fastener and hole sizes "
+                    "(see the readouts); there is no what-if state to move. Pick a mate or a feature "
+                    "to try sizes.")
+        else:
+            hint = self._hint()
+        self.hint.setText(hint)
         self.reset.setVisible(insp is None)
+        self.reset.setEnabled(bool(fids))
         if insp is not None:
             self.inspection = InspectionControls(self.model, insp)
             self.inspection.load_button.clicked.connect(self.loadRequested)
@@ -814,17 +884,33 @@ class WhatIfPanel(QWidget):
 # ---------------------------------------------------------------- verdict and readouts
 
 
-def check_word(c) -> str:
-    """The verdict word of a geom.inspect Check (as ``matezone inspect`` prints it)."""
-    return {True: "CONFORMS", False: "FAILS", None: "not evaluated"}[c.conforms]
+def other_axis_basis(res) -> str | None:
+    """The basis ("feature axis" / "median line") of the axis reading that does not govern."""
+    for a in (res.median_axis, res.feature_axis):
+        if a is not None and a is not res.axis:
+            return a.basis
+    return None
+
+
+def axis_readings(res) -> list:
+    """(reading, governs) for every axis reading of an inspection: the governing one first."""
+    out = [] if res.axis is None else [(res.axis, True)]
+    for a in (res.feature_axis, res.median_axis):
+        if a is not None and a is not res.axis and all(a is not b for b, _g in out):
+            out.append((a, False))
+    return out
 
 
 class VerdictBanner(QFrame):
-    """ASSEMBLES / INTERFERES, in colour and in words, at the sizes set and in the worst case."""
+    """The verdict in colour and in words: for a mate ASSEMBLES / INTERFERES at the sizes set
+    and in the worst case; for an inspection geom's one part verdict (``insp.verdict``), word for
+    word as the PDF shows it, coloured by its role (:data:`ROLE_LOOK`)."""
 
     def __init__(self, model: SceneModel, parent=None):
         super().__init__(parent)
         self.model = model
+        self.state = "none"
+        self.role = "none"
         self.setObjectName("verdict")
         lay = QVBoxLayout(self)
         lay.setContentsMargins(10, 6, 10, 6)
@@ -834,6 +920,7 @@ class VerdictBanner(QFrame):
         f.setBold(True)
         self.headline.setFont(f)
         self.headline.setWordWrap(True)
+        self.headline.setTextFormat(Qt.PlainText)  # geom's headline, word for word (it may hold "<" / ">")
         self.detail = QLabel()
         self.detail.setWordWrap(True)
         lay.addWidget(self.headline)
@@ -850,54 +937,69 @@ class VerdictBanner(QFrame):
         if fid is not None:
             self._inspection(fid)
             return
+        if self.toolTip():
+            self.setToolTip("")
+        fast = self.model.focus_fastener()
+        if fast is not None:
+            self._fastener(fast)
+            return
         mi = self.model.focus_mate()
         if mi is None:
             self.state = "none"
-            self._paint(NEUTRAL, "#eceff1", "NO MATE: fit not evaluated",
-                        "This feature is in no mate. Add a mate to judge a fit.")
+            self._paint("none", "NO MATE: fit not evaluated",
+                        "This feature is in no mate. Add a mate to judge a fit.", mark=False)
             return
         v = mate_verdict_at(self.model.result, mi, self.model.states)
         m = self.model.scene.mates[mi]
         self.state = "assembles" if v.assembles else "interferes"
-        mark = "✔" if v.assembles else "✖"
-        fg, bg = (OK_GREEN, "#e8f5e9") if v.assembles else (BAD_RED, "#ffebee")
-        self._paint(fg, bg, f"{mark} {v.headline}",
+        self._paint("ok" if v.assembles else "fail", v.headline,
                     f"Mate {mi + 1} ({m.hole} ← {m.pin}). Worst case: {v.worst_case}.<br>"
-                    f"<span style='font-family:monospace'>{v.formula}</span>")
+                    f"<span style='font-family:monospace'>{_html(v.formula)}</span>")
+
+    def _fastener(self, fid: str) -> None:
+        fr = self.model.result.fasteners[fid]
+        u, st = self.model.scene.units, self.model.scene.standard
+        self.state = "none"
+        self._paint("none", f"FASTENER {fid} ({fr.fastener.kind}): position tolerance "
+                            f"⌀{u.fmt(fr.position_tolerance.value)} {u.value}",
+                    f"<span style='font-family:monospace'>{_html(fr.position_tolerance.formula(u, st))}</span>"
+                    "<br>No fit to judge here: the tolerance is what the fastener pattern allows.", mark=False)
 
     def _inspection(self, fid: str) -> None:
-        from geom.inspect import GOVERNS_ASME, GOVERNS_ISO  # loaded once an inspection is shown
-
         res = self.model.shown_inspection()
         if res is None:
             self.state = "none"
-            self._paint(NEUTRAL, "#eceff1", f"INSPECTION of {fid}: no result yet",
-                        "Load a CSV of measured points for it (File > Load measured points…).")
+            self._paint("none", f"INSPECTION of {fid}: no result yet",
+                        "Load a CSV of measured points for it (File > Load measured points…).", mark=False)
             return
-        checks = (res.size_check, res.axis_check, res.surface_check)
-        words = [f"{c.name} {check_word(c)}" for c in checks]
-        failed = any(c.conforms is False for c in checks)
-        rule = ("ISO 14253-1 decision rule, U = " + self.model.scene.units.fmt(res.uncertainty) + " (k = 2)"
+        u = self.model.scene.units
+        v = res.verdict
+        rule = ("ISO 14253-1 decision rule, U = " + u.fmt(res.uncertainty) + " (k = 2)"
                 if res.uncertainty is not None else "no uncertainty U given: measured values alone")
-        detail = f"Measured {res.feature.kind.value} {fid}, bonus from the {res.bonus_basis} envelope; {rule}."
-        # geom's sentence on which reading decides when axis and surface disagree: the surface
-        # (gauge) reading governs (ASME Y14.5 / ISO 2692 as geom.inspect cites them)
-        governs = next((e for e in res.explanation if e in (GOVERNS_ASME, GOVERNS_ISO)), None)
-        if governs:
-            detail += "<br>" + _html(governs)
-        if governs and res.axis_check.conforms is False and res.surface_check.conforms is True \
-                and res.size_check.conforms is not False:
-            # geom says the surface reading governs, and it conforms; only the axis reading fails
-            self.state = "conforms by surface"
-            self._paint(AMBER, AMBER_BG, f"✔ INSPECTION {fid}: CONFORMS by the governing surface (gauge) "
-                        f"reading; the axis reading fails ({', '.join(words)})", detail)
+        lines = [f"Measured {_html(res.feature.kind.value)} {_html(fid)}; {rule}."]
+        if v is None:  # geom gave no overall verdict: nothing claims one
+            self.state = "none"
+            self._paint("none", f"INSPECTION of {fid}: NOT EVALUATED", "<br>".join(lines))
             return
-        self.state = "fails" if failed else "conforms"
-        fg, bg = (BAD_RED, "#ffebee") if failed else (OK_GREEN, "#e8f5e9")
-        lead = "✖" if failed else "✔"
-        self._paint(fg, bg, f"{lead} INSPECTION {fid}: " + ", ".join(words), detail)
+        lines.append("<b>Why:</b> " + _html(v.why))
+        if res.axis is not None:
+            gov = f"<b>Governing axis reading:</b> {_html(res.axis.basis)}"
+            other = other_axis_basis(res)
+            if other:
+                gov += f" (the {_html(other)} reading is shown and does not govern)"
+            lines.append(gov)  # the reason (res.axis_governs) is in the tooltip and the readout table
+        lines += ["<b>Note:</b> " + _html(n) for n in v.notes]
+        self.state = v.role
+        self._paint(v.role, v.headline, "<br>".join(lines))
+        tip = res.axis_governs or ""
+        if self.toolTip() != tip:
+            self.setToolTip(tip)
 
-    def _paint(self, fg: str, bg: str, head: str, detail: str) -> None:
+    def _paint(self, role: str, head: str, detail: str, mark: bool = True) -> None:
+        """Colour and mark from :data:`ROLE_LOOK`; ``head`` shown after the mark, word for word."""
+        fg, bg, sign = ROLE_LOOK[role]
+        self.role = role
+        head = f"{sign} {head}" if mark else head
         sheet = f"#verdict {{ background: {bg}; border: 2px solid {fg}; border-radius: 4px; }} QLabel {{ color: {fg}; }}"
         if sheet != self.styleSheet():  # re-styling is costly; a what-if move mostly keeps the colour
             self.setStyleSheet(sheet)
@@ -988,25 +1090,47 @@ class ReadoutTable(QTableWidget):
         self.values[(fid, quantity)] = value
         self._add((quantity, value, formula), **kw)
 
+    def _check_row(self, fid: str, quantity: str, c, role_text: str, key: str | None = None) -> None:
+        """One reading: geom's word (verdict_word), coloured by its role; the detail, the ISO
+        14253-1 outcome as geom words it, and whether the reading governs."""
+        word, role = verdict_word(c)
+        self._row(fid, quantity, word, f"{c.detail}   [{c.outcome_text}; {role_text}]",
+                  fg=ROLE_LOOK[role][0], bold=True)
+        self.values[(fid, f"{key or c.name} outcome")] = c.outcome_text
+
     def inspection_rows(self, res) -> None:
         """Every row from geom.inspect's InspectionResult: nothing is computed here."""
         fid = res.feature.id
         u = res.units
+        st = res.standard
         fmt = u.fmt
+        B = term("bonus", st)[0]
         head = dict(bold=True, bg="#eceff1")
         src = (f"{len(res.points)} points in {len(res.sections)} sections from {res.source_file}"
                if res.source == "points" and res.points is not None else "values typed in the scene file")
         self._add((f"inspection of {res.feature.kind.value} {fid}", "", src), bold=True, bg="#e3f2fd")
-        self._add(("verdicts", "", "ISO 14253-1 decision rule, U = " + fmt(res.uncertainty) + " (k = 2)"
+        v = res.verdict
+        if v is not None:
+            look = ROLE_LOOK[v.role]
+            self._row(fid, "part verdict", v.word, ui_text(v.headline), bold=True, fg=look[0], bg=look[1])
+            self._row(fid, "why", "", ui_text(v.why))
+            for i, n in enumerate(v.notes):
+                self._row(fid, "note" if len(v.notes) == 1 else f"note {i + 1}", "", ui_text(n), tip=n)
+        self._add(("readings", "", "ISO 14253-1 decision rule, U = " + fmt(res.uncertainty) + " (k = 2)"
                    if res.uncertainty is not None else "no uncertainty U given: decided on the measured values alone"),
                   **head)
+        governing = v.governing if v is not None else ()
         for c in (res.size_check, res.axis_check, res.surface_check):
-            colour = {True: OK_GREEN, False: BAD_RED}.get(c.conforms, NEUTRAL)
-            self._row(fid, f"{c.name} verdict", check_word(c), f"{c.detail}   [{c.outcome}]", fg=colour, bold=True)
-            self.values[(fid, f"{c.name} outcome")] = c.outcome
+            self._check_row(fid, f"{c.name} verdict", c, "governs the part verdict" if c.name in governing
+                            else "shown, does not govern the part verdict")
+        other = res.other_axis_check
+        if other is not None:
+            basis = other_axis_basis(res) or "other axis"
+            self._check_row(fid, f"{basis} reading (does not govern)", other, "does not govern",
+                            key=f"{basis} reading")
         if res.envelope_check is not None:
             for c in (res.local_check, res.envelope_check):
-                self._row(fid, f"  {c.name}", check_word(c), f"{c.detail}   [{c.outcome}]")
+                self._check_row(fid, f"  {c.name}", c, "part of size")
         self._add(("envelopes", "", "perfect cylinders fitted to the measured surface"), **head)
         for e in (res.unrelated, res.related, res.least_material, res.least_material_related):
             if e is None:
@@ -1015,46 +1139,59 @@ class ReadoutTable(QTableWidget):
                 f"axis at A ({fmt(e.point[0])}, {fmt(e.point[1])}), tilt {e.tilt_deg:.5f} deg; {e.constraint}")
             self._row(fid, e.name, ui_text(f"⌀{fmt(e.diameter)}"), how)
         if res.local_sizes is not None:
-            self._row(fid, "local sizes (two-point)", f"{fmt(res.local_sizes[0])} .. {fmt(res.local_sizes[1])}",
-                      f"limits {fmt(res.feature.limits[0])} .. {fmt(res.feature.limits[1])}")
+            lo, hi = u.fmt_cmp(*res.local_sizes)
+            llo, lhi = u.fmt_cmp(*res.feature.limits)
+            self._row(fid, "local sizes (two-point)", f"{lo} .. {hi}", f"limits {llo} .. {lhi}")
         if res.bonus is not None or res.formulas:
-            self._add(("bonus and tolerance allowed", "", f"bonus basis: the {res.bonus_basis} envelope"), **head)
-            self._row(fid, "bonus basis", res.bonus_basis,
+            self._add((f"{B} and tolerance allowed", "", f"{B} basis: the {res.bonus_basis} envelope"), **head)
+            self._row(fid, f"{B} basis", res.bonus_basis,
                       "switch it in the side panel (unrelated: any orientation; related: held to the datum)")
             formulas = list(res.formulas)
             # geom lists the bonus formula first (when a bonus was evaluated), then tolerance allowed
-            bonus_f = formulas[0] if formulas and res.bonus is not None and not formulas[0].startswith(
-                "tolerance allowed") else ""
             allowed_f = next((x for x in formulas if x.startswith("tolerance allowed")), "")
-            self._row(fid, "bonus", fmt(res.bonus), ui_text(bonus_f))
+            bonus_f = formulas[0] if formulas and res.bonus is not None and formulas[0] != allowed_f else ""
+            self._row(fid, B, fmt(res.bonus), ui_text(bonus_f))
             self._row(fid, "tolerance allowed", fmt(res.tolerance_allowed), allowed_f)
             for x in formulas:
                 if x not in (bonus_f, allowed_f):
                     self._add(("", "", ui_text(x)))
         if res.virtual_condition is not None:
-            self._row(fid, "virtual condition", fmt(res.virtual_condition), "the boundary a functional gauge checks")
-        if res.axis is not None:
-            a = res.axis
-            self._add(("axis reading", "", "derived median line"), **head)
-            self._row(fid, "axis reading", fmt(a.deviation), ui_text(a.method))
-            if a.diameter_reading is not None:
-                self._row(fid, "  diameter reading", fmt(a.diameter_reading), "")
-            if a.width_reading is not None:
-                self._row(fid, "  width reading", fmt(a.width_reading), "")
+            vc_key = "vc_LMC" if res.feature.tolerance is not None and \
+                res.feature.tolerance.material is Material.LMC else "vc_MMC"
+            self._row(fid, term(vc_key, st)[1], fmt(res.virtual_condition), "the boundary a functional gauge checks")
+        readings = axis_readings(res)
+        if readings:
+            self._add(("axis readings", "", ui_text(res.axis_governs) if res.axis_governs else ""), **head,
+                      tip=res.axis_governs)
+            for a, gov in readings:
+                what = "governing axis reading" if gov else "does not govern"
+                self._row(fid, f"{a.basis} ({what})", fmt(a.deviation), ui_text(a.method))
+                if gov:
+                    self.values[(fid, "axis reading")] = fmt(a.deviation)
+                if a.diameter_reading is not None:
+                    self._row(fid, f"  {a.basis}: diameter reading", fmt(a.diameter_reading), "")
+                if a.width_reading is not None:
+                    self._row(fid, f"  {a.basis}: width reading", fmt(a.width_reading), "")
         ls = res.least_squares
         if ls is not None:
-            self._add(("least squares vs envelope", "", "the usual CMM printout, side by side"), **head)
-            self._row(fid, "LS size", ui_text(f"⌀{fmt(ls.size)}"),
-                      ui_text(f"envelope ⌀{fmt(res.unrelated_ame)}") + "; LS size {'within' if ls.size_conforms else 'outside'} "
+            self._add(("least squares beside the envelope", "", "the usual CMM printout, side by side; not a verdict"),
+                      **head)
+            s_ls, s_env = u.fmt_cmp(ls.size, res.unrelated_ame) if res.unrelated_ame is not None else (fmt(ls.size), "-")
+            self._row(fid, "LS size", ui_text(f"⌀{s_ls}"),
+                      ui_text(f"envelope ⌀{s_env}") + f"; LS size {'within' if ls.size_conforms else 'outside'} "
                       "the limits")
             if ls.axis_deviation is not None:
-                self._row(fid, "LS axis reading", fmt(ls.axis_deviation), ui_text(ls.formulas[1]) if len(ls.formulas) > 1 else "")
+                self._row(fid, "LS axis reading", fmt(ls.axis_deviation),
+                          ui_text(ls.formulas[1]) if len(ls.formulas) > 1 else "")
             if ls.tolerance_allowed is not None:
                 self._row(fid, "LS tolerance allowed", fmt(ls.tolerance_allowed),
                           " ; ".join(ui_text(x) for x in ls.formulas[2:]))
-            if ls.axis_conforms is not None:
-                self._row(fid, "LS axis verdict", "CONFORMS" if ls.axis_conforms else "FAILS",
-                          f"{fmt(ls.axis_deviation)} {'<=' if ls.axis_conforms else '>'} {fmt(ls.tolerance_allowed)}")
+            if ls.axis_conforms is not None and ls.axis_deviation is not None and ls.tolerance_allowed is not None:
+                a, b = u.fmt_cmp(ls.axis_deviation, ls.tolerance_allowed)
+                where = "within" if ls.axis_conforms else "beyond"
+                self._row(fid, "LS axis against tolerance allowed",
+                          f"{where} the tolerance allowed (not a verdict)",
+                          f"{a} {'<=' if ls.axis_conforms else '>'} {b}")
         if res.explanation:
             self._add(("explanation", "", ""), **head)
             for i, e in enumerate(res.explanation):
@@ -1112,8 +1249,20 @@ class ReadoutTable(QTableWidget):
                        f"hole {term('lmc', st)[0]} - pin {term('lmc', st)[0]}"))
             for a in mr.assumptions:
                 self._add(("assumes", "", a))
+        fast = m.focus_fastener()
         for fid, fr in res.fasteners.items():
-            self._add((f"fastener {fid} ({fr.fastener.kind})", "", ""), bold=True, bg="#eceff1")
+            if fast is not None and fid != fast:
+                continue
+            fa = fr.fastener
+            self._add((f"fastener {fid} ({fa.kind})", "", ""), bold=True, bg="#eceff1")
+            if fast is not None:  # the fastener looked at: its inputs too
+                self._row(fid, "fastener F (at its largest size)", u.fmt(fa.fastener), "")
+                self._row(fid, "clearance hole H (at its smallest size)", u.fmt(fa.hole), "")
+                if fa.projection is not None:
+                    self._row(fid, "projection P", u.fmt(fa.projection), "")
+                if fa.thread_depth is not None:
+                    self._row(fid, "thread depth D", u.fmt(fa.thread_depth), "")
+            self.values[(fid, "position tolerance")] = u.fmt(fr.position_tolerance.value)
             self._add(("position tolerance", u.fmt(fr.position_tolerance.value),
                        fr.position_tolerance.formula(u, st)))
             if fr.position_tolerance_unprojected is not None:

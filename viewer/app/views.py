@@ -42,6 +42,22 @@ LAYER_NAMES = {
     "readouts": "Numbers on the picture",
     "legend": "Colour legend",
 }
+# the names that depend on the standard's terms (geom.analysis.term): ASME VC, ISO MMVS / LMVS ...
+def layer_name(name: str, standard) -> str:
+    """The Layers-menu name of a scene layer, in the scene's standard's terms."""
+    from geom.analysis import term
+    from geom.model import Standard
+
+    if name == "vc":
+        vc = {term("vc_MMC", standard)[0], term("vc_LMC", standard)[0]}
+        return " / ".join(sorted(vc)) + " boundary"
+    if name == "rc":
+        return f"{term('rc', standard)[0]} boundary"
+    if name == "envelopes":
+        return "Mating envelopes" if standard is Standard.ASME else "Associated cylinders"
+    return LAYER_NAMES.get(name, name)
+
+
 HIDDEN_IN_WINDOW = {"readouts"}
 MESHLESS = {"labels", "readouts", "legend"}  # layers add_to_plotter draws as text, not meshes  # the window's readout table shows these numbers already
 WINDOW_CENTRE = (0.0, 0.05)  # camera window centre in the window: centred, a little low (labels above)
@@ -79,7 +95,7 @@ class View3D(QWidget):
         self.layer_menu = QMenu(self)
         self.layer_actions = {}
         for name in scene3d.LAYERS:
-            a = self.layer_menu.addAction(LAYER_NAMES.get(name, name))
+            a = self.layer_menu.addAction(layer_name(name, model.scene.standard))
             a.setCheckable(True)
             a.setChecked(name not in scene3d.HIDDEN_BY_DEFAULT and name not in HIDDEN_IN_WINDOW)
             a.toggled.connect(lambda on, name=name: self.set_layer(name, on))
@@ -131,9 +147,17 @@ class View3D(QWidget):
         self.plotter.interactor.installEventFilter(self._resize_filter)
         model.statesChanged.connect(self.schedule)
         model.sceneChanged.connect(self.schedule)
+        model.sceneChanged.connect(self._layer_names)
         model.focusChanged.connect(self.schedule)
         model.inspectionChanged.connect(self.schedule)
         model.inspectionBusy.connect(self._busy)
+
+    def _layer_names(self) -> None:
+        st = self.model.scene.standard
+        for name, a in self.layer_actions.items():
+            text = layer_name(name, st)
+            if a.text() != text:
+                a.setText(text)
 
     def _busy(self, on: bool) -> None:
         if on:
@@ -155,6 +179,8 @@ class View3D(QWidget):
         m = self.model
         kind, key = m.focus
         s = self.scene3d_mod
+        if kind not in ("mate", "feature", "inspection"):
+            return None  # a fastener (or nothing): no 3D picture
         if kind == "inspection":
             insp = m.shown_inspection()
             return None if insp is None else s.build_inspection_scene(m.result, insp)
@@ -168,11 +194,35 @@ class View3D(QWidget):
         if self.closed:
             return
         t0 = time.perf_counter()
+        if self.model.focus[0] not in ("mate", "feature", "inspection"):
+            self.show_nothing()
+            return
         sc3 = self.build()
         if sc3 is None:
             return
         self.show_scene(sc3)
         self.last_update_s = time.perf_counter() - t0
+
+    def show_nothing(self) -> None:
+        """A focus with no 3D picture (a fastener pattern): the view is emptied and says so."""
+        p = self.plotter
+        for title in list(p.scalar_bars.keys()):
+            p.remove_scalar_bar(title, render=False)
+        if getattr(p, "legend", None) is not None:
+            p.remove_legend(render=False)
+        for actors in self.actors.values():
+            for a in actors:
+                p.remove_actor(a, render=False)
+        self.actors, self._feeds, self._sig = {}, {}, None
+        self._labels = self._readouts = None
+        self.current = None
+        self._focus_key = self.model.focus
+        kind, key = self.model.focus
+        self.caption.setText(f"{kind} {key}: no 3D picture; its schematic is in the 2D view, its numbers "
+                             "in the readouts" if key is not None else "nothing to show")
+        self.legend.setVisible(False)
+        self.render()
+        self.rendered.emit()
 
     def show_scene(self, sc3) -> None:
         """Replace the actors by those of ``sc3``; the camera stays unless the focus changed."""
@@ -642,6 +692,21 @@ class Views2D(QTabWidget):
         model.statesChanged.connect(self.schedule)
         model.sceneChanged.connect(self.schedule)
         model.focusChanged.connect(self.schedule)
+        model.focusChanged.connect(self._tabs_for_focus)
+        model.sceneChanged.connect(self._tabs_for_focus)
+        self._tabs_for_focus()
+
+    def _tabs_for_focus(self) -> None:
+        """A fastener has one 2D picture (its section schematic), shown in the first tab; the
+        other tabs are for holes and pins."""
+        fast = self.model.focus_fastener() is not None
+        for i, (_key, title) in enumerate(self.TABS):
+            text = "Fastener section" if fast and i == 0 else title
+            if self.tabText(i) != text:
+                self.setTabText(i, text)
+            self.setTabEnabled(i, not fast or i == 0)
+        if fast and self.currentIndex() != 0:
+            self.setCurrentIndex(0)
 
     TABS = (("through", "Through-view"), ("section", "Section"), ("bonus", "Bonus chart"))  # figures.VIEWS_2D
 
@@ -661,7 +726,11 @@ class Views2D(QTabWidget):
             self.draw(key)
 
     def subject(self):
-        """What the 2D views show: the mate in focus (or of the focused feature), else the feature."""
+        """What the 2D views show: the mate in focus (or of the focused feature), else the feature;
+        for a fastener its id as ("fastener", id)."""
+        fast = self.model.focus_fastener()
+        if fast is not None:
+            return ("fastener", fast)
         mi = self.model.focus_mate()
         kind, key = self.model.focus
         if kind == "feature" and (mi is None or self.model.scene.feature(key).tolerance is None):
@@ -670,7 +739,12 @@ class Views2D(QTabWidget):
 
     def make_figure(self, key: str):
         m = self.model
-        fig, _data = self.figures_mod.draw_view(key, m.result, self.subject(), dict(m.states))
+        sub = self.subject()
+        if isinstance(sub, tuple):  # a fastener: its section schematic (the report's), in every tab
+            from viewer.report import fastener_figure
+
+            return fastener_figure(m.result, sub[1])
+        fig, _data = self.figures_mod.draw_view(key, m.result, sub, dict(m.states))
         return fig
 
     def draw(self, key: str) -> None:

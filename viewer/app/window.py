@@ -229,7 +229,7 @@ class MainWindow(QMainWindow):
         self.act["undo"], self.act["redo"] = undo, redo
         em.addSeparator()
         add(em, "worst", "&Worst case", self.model.reset_states, "Ctrl+0",
-            "Every feature at MMC with all of its tolerance used")
+            "Every feature at maximum material with all of its tolerance used")
 
         vm = mb.addMenu("&View")
         if self.view3d is not None:
@@ -246,7 +246,8 @@ class MainWindow(QMainWindow):
     def _about(self) -> None:
         QMessageBox.about(self, "About matezone",
                           "<b>matezone</b> shows the worst-case fit of toleranced holes and pins: "
-                          "MMC/LMC, bonus, virtual and resultant condition, clearance.<br><br>" + CAUTION)
+                          "maximum and least material sizes, bonus (ISO: increase), virtual and resultant "
+                          "condition, clearance, fastener tolerances and the conformance of measured parts.<br><br>" + CAUTION)
 
     def _title(self) -> None:
         m = self.model
