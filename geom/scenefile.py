@@ -226,6 +226,9 @@ def _feature(c: _Ctx, v, i: int) -> Feature:
     c.table(v, path, FEATURE_KEYS, required=("id", "kind", "limits", "length"))
     fid = c.string(v["id"], _join(path, "id"), what="an id", max_len=MAX_ID)
     path = f'feature[{i}] "{fid}"'
+    if "=" in fid or fid != fid.strip():
+        c.fail(_join(path, "id"), f"expected an id without '=' and without surrounding spaces (the command line "
+                                  f"writes ID=VALUE), got {fid!r}")
     kind = Kind(c.string(v["kind"], _join(path, "kind"), [x.value for x in Kind]))
     lim = v["limits"]
     if not isinstance(lim, list) or len(lim) != 2:

@@ -22,6 +22,8 @@ def _id_pairs(specs: list[str], scene, option: str, example: str):
     for spec in specs:
         fid, sep, val = spec.partition("=")
         fid, val = fid.strip(), val.strip()
+        if not ids:  # a scene of fastener tables only
+            raise UserError(f"{option} {spec!r}: the scene has no features (only fasteners)")
         if not sep or not fid or not val:
             what = "VALUE" if option == "--size" else "CSV"
             raise UserError(f"{option} {spec!r}: expected ID={what}, e.g. {option} {ids[0]}={example}")
@@ -39,7 +41,8 @@ def parse_sizes(specs: list[str], scene) -> dict[str, float]:
     from geom.boundaries import SizeOutOfLimits, check_size
 
     sizes: dict[str, float] = {}
-    for spec, fid, val in _id_pairs(specs, scene, "--size", f"{scene.features[0].mmc:g}"):
+    example = f"{scene.features[0].mmc:g}" if scene.features else "6.0"
+    for spec, fid, val in _id_pairs(specs, scene, "--size", example):
         try:
             v = float(val)
         except ValueError:

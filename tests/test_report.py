@@ -11,9 +11,10 @@ import pytest
 from pypdf import PdfReader
 
 from geom import analyse_scene, load, result_to_json
+from geom.model import Standard
 from geom.readout import CAUTION
 from matezone.cli import main
-from viewer.report import FASTENERS_PER_PAGE
+from viewer.report import FASTENERS_PER_PAGE, build_page, item_states, report_items
 
 ROOT = Path(__file__).resolve().parent.parent
 SCENES = sorted((ROOT / "scenes").glob("*.toml"))
@@ -148,8 +149,42 @@ def test_every_demo_scene_produces_its_report(scene, tmp_path):
     assert len(list(tmp_path.glob("*.svg"))) == 3 * fit_pages + len(sc.fasteners)
     data = json.loads((tmp_path / "results.json").read_text(encoding="utf-8"))
     assert sorted(data["inspections"]) == sorted(f.id for f in measured)
-    text = _squash(_pdf_text(tmp_path / "report.pdf"))
+    pages = [p.extract_text() for p in PdfReader(str(tmp_path / "report.pdf")).pages]
+    raw = "\n".join(pages)
+    text = _squash(raw)
     assert _squash(CAUTION) in text
     res = analyse_scene(sc)
     for m in res.mates:  # each mate's worst-case clearance, as analysed, is on its page
         assert sc.units.fmt(m.clearance_min, signed=True) in text
+    # signed pages name the standard only: no clause numbers, no "from memory"
+    assert "§" not in raw and "frommemory" not in text.lower()
+    if sc.standard is Standard.ISO:  # ISO terms (ISO 2692, ISO 8015), never the ASME ones
+        for word in (r"\bbonus\b", r"\bVC\b", r"\bAME\b", r"actual mating", r"Rule #1", r"\bRFS\b", r"\bMMC\b"):
+            assert not re.search(word, raw), word
+    # a report that judges measured parts titles its fit pages as design intent
+    fit = pages[len(measured):len(measured) + fit_pages]
+    for page in fit:
+        if measured:
+            assert "DESIGN INTENT" in page and "FIT EVIDENCE" not in page
+            assert _squash("not a verdict on the measured part") in _squash(page)
+        else:
+            assert "FIT EVIDENCE" in page and "DESIGN INTENT" not in page
+
+
+def test_projected_hole_rows_name_the_projected_height():
+    # a hole whose zone is projected: IB/OB apply within the projected height; a mating pin meets
+    # the boundary over the hole's own length, MMC - t L/P for an orientation tolerance (floating
+    # zone): 10.000 - 0.020 * 15 / 12 = 9.975 (ASME Y14.5 projected zone, from memory; computed here)
+    sc = load(ROOT / "scenes" / "example_annotated.toml")
+    bore = sc.feature("bore")
+    t, L, P = bore.tolerance.value, bore.length, bore.tolerance.projected
+    assert bore.mmc - t * L / P == pytest.approx(9.975)
+    res = analyse_scene(sc)
+    item = next(i for i in report_items(res) if i.subject.hole is not None and i.subject.hole.id == "bore")
+    fig = build_page(res, item, item_states(res, item, None), None, 1, 1)  # the page, without the 3D picture
+    text = _squash(" ".join(t.get_text() for t in fig.texts))
+    r = res.features["bore"]
+    for d in (r.inner_boundary, r.outer_boundary):  # IB/OB labelled: they hold within the projected height
+        assert _squash(f"{d.formula(sc.units, sc.standard)}, within the projected height") in text
+    assert _squash(f"{r.in_hole_boundary.formula(sc.units, sc.standard)}, within the hole's own length") in text
+    assert sc.units.fmt(bore.mmc - t * L / P) in text  # 9.975, computed above

@@ -10,14 +10,18 @@ from pathlib import Path
 
 import matplotlib.image as mpimg
 import pytest
+from matplotlib.colors import to_hex
 from pypdf import PdfReader
 
 from geom import analyse_scene, load
 from geom.analysis import analyse_fastener
+from geom.conformance import Outcome, readings_disagree
 from geom.inspect import inspect_feature, inspection_to_json
 from geom.readout import CAUTION
+from geom.scenefile import loads
 from matezone.cli import main
-from viewer.report import SECTION_ROWS, condensed_sections
+from viewer.report import SECTION_ROWS, build_inspection_page, condensed_sections
+from viewer.style import ROLE_COLOUR
 
 ROOT = Path(__file__).resolve().parent.parent
 CAP = ROOT / "scenes" / "cap_bore_inspection.toml"
@@ -55,6 +59,22 @@ def cap_inspection():
     return sc, inspect_feature(sc, "cap-bore")
 
 
+def _design_readings():
+    """Independent check values from the demo scan's design (scripts/make_demo_points.py): the
+    bore is tilted 0.015 over its length along one direction and its upper half flares, the
+    section centres drifting a further 0.0075 * ((zeta - 0.5) / 0.5)^2 at zeta = z / 12 > 0.5,
+    while one wall stays straight. The centres lie on one line through A, so the smallest circle
+    holding them projected on A has their span as diameter (the median line reading); the
+    feature axis (the axis of the largest inscribed cylinder, along the straight wall) carries
+    only the tilt."""
+    import numpy as np
+
+    zs = np.linspace(0.25, 12.0 - 0.25, 24)  # the scan's 24 rings
+    zeta = zs / 12.0
+    offset = 0.015 * zeta + 0.0075 * np.clip((zeta - 0.5) / 0.5, 0.0, None) ** 2
+    return 0.015, float(offset.max() - offset.min())
+
+
 def test_inspection_page_carries_the_numbers_and_verdicts(cap_report, cap_inspection):
     out, _ = cap_report
     sc, insp = cap_inspection
@@ -63,34 +83,58 @@ def test_inspection_page_carries_the_numbers_and_verdicts(cap_report, cap_inspec
     assert len(pages) == 2  # the inspection page first, then the design fit of the one mate
     text = pages[0]
     assert "INSPECTION EVIDENCE" in text
-    # numbers from geom.inspect.inspect_feature (computed above), at the units' precision
+    # the readings agree with the scan's design (computed above, independently of geom)
+    feature_axis, median_line = _design_readings()
+    assert insp.feature_axis.deviation == pytest.approx(feature_axis, abs=0.0008)
+    assert insp.median_axis.deviation == pytest.approx(median_line, abs=0.0008)
+    # tolerance allowed = t + bonus, bonus = AME - MMC (ASME Y14.5 bonus at MMC); the bore's
+    # narrowest diameter is 8.005 less the 0.0005 lobes on each side, less probe noise
+    assert 8.000 + 0.0028 <= insp.unrelated_ame <= 8.005 - 2 * 0.0005 + 1e-9
+    assert insp.tolerance_allowed == pytest.approx(0.015 + insp.unrelated_ame - 8.000, abs=1e-9)
+    # VC = MMC - t = 8.000 - 0.015 = 7.985 (ASME Y14.5 virtual condition of a hole at MMC)
+    assert insp.virtual_condition == pytest.approx(7.985, abs=1e-9)
+    # the numbers the page prints, at the units' precision (the demo scan, as above)
     ame, rel = u.fmt(insp.unrelated_ame), u.fmt(insp.related_ame)
-    axis, allowed = u.fmt(insp.axis_deviation), u.fmt(insp.tolerance_allowed)
+    fa, ml, allowed = u.fmt_cmp(insp.feature_axis.deviation, insp.median_axis.deviation, insp.tolerance_allowed)
     vc = u.fmt(insp.virtual_condition)
-    assert (ame, rel, axis, allowed, vc) == ("8.003", "7.990", "0.021", "0.018", "7.985")  # the demo scan
+    assert (ame, rel, fa, ml, allowed, vc) == ("8.003", "7.990", "0.015", "0.021", "0.018", "7.985")
     flat = _squash(text)
-    # envelopes beside least squares: each envelope named with its diameter
-    assert _squash(f"unrelated AME ⌀{ame}") in flat and _squash(f"related AME ⌀{rel}") in flat
+    # envelopes beside least squares: each envelope named as geom names it, with its diameter
+    assert _squash(f"{insp.unrelated.name} ⌀{ame}") in flat and _squash(f"{insp.related.name} ⌀{rel}") in flat
     assert _squash(f"tolerance allowed {allowed}") in flat
-    assert _squash(f"axis reading {axis} (section centres)") in flat
+    # both axis readings, and which governs (ASME Y14.5: perpendicularity of a feature of size
+    # applies to its feature axis; the derived median line only to straightness, from memory)
+    assert insp.axis is insp.feature_axis and insp.axis.basis == "feature axis"
+    assert _squash(f"feature axis reading: governs {fa}") in flat
+    assert _squash(f"median line reading: does not govern {ml}") in flat
+    assert _squash(insp.axis_governs) in flat
     # the bonus and tolerance allowed as geom derived them (geom.inspect formulas)
     for formula in insp.formulas:
         assert _squash(formula) in flat, formula
-    # the three verdicts with their ISO 14253-1 outcomes (from the InspectionResult)
-    assert insp.axis_check.conforms is False and insp.surface_check.conforms is True
-    assert "AXIS READING FAILS" in text
-    assert _squash("axis reading: FAILS") in flat and _squash("surface reading: CONFORMS") in flat
-    assert _squash("size reading: CONFORMS") in flat
-    for c in (insp.size_check, insp.axis_check, insp.surface_check):
+    # the one verdict, word for word as geom gives it: the part conforms (feature axis
+    # 0.015 <= 0.018 and surface 7.990 >= VC 7.985, each at least U = 0.001 inside its limit,
+    # ISO 14253-1 decision rule)
+    assert insp.verdict.outcome is Outcome.CONFORMS
+    assert "PART CONFORMS" in text and _squash(insp.verdict.headline) in flat
+    assert _squash(insp.verdict.why) in flat
+    # every reading with its word (geom.conformance.verdict_word) and its outcome text
+    for c in (insp.size_check, insp.axis_check, insp.surface_check, insp.other_axis_check):
         assert _squash(c.detail) in flat, c.detail
-        assert c.outcome in text
+        assert _squash(c.outcome_text) in flat
+    assert _squash("size (governs): CONFORMS") in flat and _squash("surface (governs): CONFORMS") in flat
+    assert _squash("axis (feature axis): CONFORMS") in flat
+    assert _squash("axis (median line) (does not govern): DOES NOT CONFORM") in flat
+    assert insp.other_axis_check.conforms is False  # 0.021 > 0.018 + U: nonconformance proven
+    # the median line disagrees with the feature axis: a labelled note, as geom wrote it
+    assert readings_disagree(insp.other_axis_check, insp.axis_check)
+    assert "NOTE: READINGS THAT DISAGREE" in text
+    for para in insp.verdict.notes + insp.explanation:
+        assert _squash(para) in flat
+    # no local verdict words of the old page
+    assert "FAILS" not in text
     # the least-squares side by side: LS size and its tolerance allowed
     ls = insp.least_squares
     assert u.fmt(ls.size) in text and u.fmt(ls.tolerance_allowed) in text
-    # the explanation of the disagreement, as geom wrote it
-    assert "WHY THE AXIS AND SURFACE READINGS DISAGREE" in text
-    for para in insp.explanation:
-        assert _squash(para) in flat
     # evidence page furniture: title block, dispositions, signatures, caution
     for s in ("NC-2026-077", "GX-220-014", "0417", "R. Lindqvist", "2026-12-09", "C4"):
         assert s in text, s
@@ -98,6 +142,54 @@ def test_inspection_page_carries_the_numbers_and_verdicts(cap_report, cap_inspec
         assert d in text
     assert "signature" in text
     assert _squash(CAUTION) in flat
+
+
+def test_design_fit_page_is_titled_as_design_intent(cap_report):
+    # a report that judges the measured bore also shows the worst-case fit the drawing allows:
+    # that page is design intent, not a verdict on the part (the part's verdict is page 1)
+    out, _ = cap_report
+    first, second = _pages(out / "report.pdf")
+    assert "PART CONFORMS" in first and "PART CONFORMS" not in second
+    assert "DESIGN INTENT" in second and "FIT EVIDENCE" not in second
+    assert _squash("worst-case fit from the drawing limits — not a verdict on the measured part") in _squash(second)
+    assert "design intent: ASSEMBLES" in second
+
+
+def test_inspection_headline_is_geoms_verdict_in_its_role_colour(cap_inspection):
+    # the page's headline box shows insp.verdict.headline exactly, in ROLE_COLOUR[role]; the
+    # same for a part that does not conform (typed values: axis 0.030 > 0.015 + 0, RFS, so the
+    # axis governs; ASME Y14.5, no modifier: tolerance allowed = t)
+    sc, insp = cap_inspection
+    res = analyse_scene(sc)
+    bad_scene = loads(_TYPED.format(material="RFS", axis=0.030))
+    bad = inspect_feature(bad_scene, "b")
+    assert bad.verdict.role == "fail" and bad.verdict.headline.startswith("PART DOES NOT CONFORM")
+    for scene_res, r in ((res, insp), (analyse_scene(bad_scene), bad)):
+        fig = build_inspection_page(scene_res, r)
+        heads = [t for t in fig.texts if t.get_gid() == "headline"]
+        assert len(heads) == 1
+        assert heads[0].get_text().replace("\n", " ") == r.verdict.headline
+        assert to_hex(heads[0].get_color()) == to_hex(ROLE_COLOUR[r.verdict.role])
+
+
+_TYPED = """title = "typed inspection"
+units = "mm"
+[[feature]]
+id = "b"
+kind = "hole"
+limits = [8.0, 8.015]
+length = 12
+[feature.tolerance]
+characteristic = "perpendicularity"
+value = 0.015
+material = "{material}"
+datums = ["A"]
+[feature.measured]
+size = 8.004
+related_size = 7.990
+axis_deviation = {axis}
+local_sizes = [8.005, 8.012]
+"""
 
 
 def test_inspection_section_table_is_condensed(cap_report, cap_inspection):
@@ -109,7 +201,8 @@ def test_inspection_section_table_is_condensed(cap_report, cap_inspection):
     shown = condensed_sections(insp.sections)
     assert f"{len(shown)} of {n} sections shown" in text
     top = insp.sections[-1]  # the widest ring, at the flared top: always shown
-    assert f"{top.z:.3f}" in text and f"{top.ls_diameter:.3f}" in text
+    u = insp.units
+    assert u.fmt(top.z) in text and u.fmt(top.ls_diameter) in text
 
 
 def test_inspection_pictures(cap_report):
@@ -158,7 +251,7 @@ def _bad_csv(tmp_path):
 
 
 @pytest.mark.parametrize("argv, needle", [
-    (lambda t: ["--points", f"cap-bore={_bad_csv(t)}"], "line 4: column 'y': expected a number, got 'n/a'"),
+    (lambda t: ["--points", f"cap-bore={_bad_csv(t)}"], ("line 4: column 'y': expected a number", "got 'n/a'")),
     (lambda t: ["--points", f"cap-bore={t / 'missing.csv'}"], "missing.csv: no such file"),
     (lambda t: ["--points", "nosuch=scan.csv"], "no feature has the id 'nosuch'"),
     (lambda t: ["--points", "cap-bore"], "expected ID=CSV"),
@@ -169,7 +262,8 @@ def test_bad_inspection_input_exits_2_with_one_message(tmp_path, argv, needle):
     out = tmp_path / "o"
     code, _, err = _run("report", CAP, "--out", out, *argv(tmp_path))
     assert code == 2
-    assert needle in err, err
+    for part in (needle,) if isinstance(needle, str) else needle:
+        assert part in err, err
     assert len(err.strip().splitlines()) == 1 and "Traceback" not in err
     assert not (out / "report.pdf").exists()
 
@@ -218,3 +312,99 @@ def test_condensed_sections_keeps_ends_and_extremes(cap_inspection):
         vals = [getattr(s, key) for s in secs]
         assert vals.index(max(vals)) in idx and vals.index(min(vals)) in idx
     assert condensed_sections(secs[:5]) == [0, 1, 2, 3, 4]
+
+
+_ISO_TYPED = """title = "ISO typed inspection"
+units = "mm"
+standard = "iso"
+[[feature]]
+id = "b"
+kind = "hole"
+limits = [8.0, 8.022]
+length = 12
+envelope = true
+[feature.tolerance]
+characteristic = "perpendicularity"
+value = 0.015
+material = "MMC"
+datums = ["A"]
+[feature.measured]
+size = 8.004
+related_size = 7.990
+axis_deviation = 0.012
+local_sizes = [8.005, 8.012]
+"""
+
+
+def test_iso_inspection_page_uses_iso_terms(tmp_path):
+    # invented typed values. ISO 2692: increase = GX - MMS = 8.004 - 8.000 = 0.004, tolerance
+    # allowed 0.015 + 0.004 = 0.019, MMVS = MMS - t = 8.000 - 0.015 = 7.985; ISO 1101: the
+    # extracted median line governs the axis reading; ISO 14405-1 (E): GX not below MMS
+    sc = loads(_ISO_TYPED)
+    res = analyse_scene(sc)
+    from viewer.report import write_report
+
+    write_report(res, tmp_path)
+    page = _pages(tmp_path / "report.pdf")[0]
+    flat = _squash(page)
+    for s in ("increase = GX - MMS = 8.004 - 8.000 = 0.004", "tolerance allowed = t + increase = 0.015 + 0.004 = 0.019",
+              "MMVS = MMS - t = 8.000 - 0.015 = 7.985", "envelope (E)", "median line reading: governs 0.012",
+              "INCREASE BASIS", "PART CONFORMS"):
+        assert _squash(s) in flat, s
+    for word in (r"\bbonus\b", r"\bVC\b", r"\bAME\b", r"actual mating", r"Rule #1", r"\bRFS\b", r"\bMMC\b", "§",
+                 "from memory"):
+        assert not re.search(word, page, re.IGNORECASE if word == "from memory" else 0), word
+
+
+_FASTENERS_ONLY = """title = "Cover screws"
+units = "mm"
+standard = "{std}"
+[[fastener]]
+id = "cover-screws"
+kind = "floating"
+fastener = 6.0
+hole = 6.6
+[[fastener]]
+id = "cover-studs"
+kind = "fixed"
+fastener = 6.0
+hole = 6.6
+thread_depth = 9.0
+projection = 8.0
+"""
+
+
+@pytest.mark.parametrize("std", ["asme", "iso"])
+def test_fastener_only_scene_writes_the_fastener_page_and_json(tmp_path, std):
+    # ASME Y14.5 fastener formulas (from memory): floating T = H - F = 6.6 - 6.0 = 0.6; fixed
+    # T = (H - F) / 2 = 0.3; fixed without a projected zone, equal tolerances, from
+    # H = F + T + T(1 + 2P/D): T = (H - F) / (2 + 2P/D) = 0.6 / (2 + 16/9) = 0.1588...
+    sc = loads(_FASTENERS_ONLY.format(std=std))
+    assert len(sc.features) == 0
+    t_float, t_fixed = 6.6 - 6.0, (6.6 - 6.0) / 2
+    t_unproj = (6.6 - 6.0) / (2 + 2 * 8.0 / 9.0)
+    from viewer.report import write_report
+
+    written = write_report(analyse_scene(sc), tmp_path / "direct")
+    assert {q.name for q in written} >= {"report.pdf", "results.json", "fastener_cover-screws.png"}
+    # and through the command, from a file
+    scene = tmp_path / "fasteners.toml"
+    scene.write_text(_FASTENERS_ONLY.format(std=std), encoding="utf-8")
+    code, _, err = _run("report", scene, "--out", tmp_path / "cli")
+    assert code == 0, err
+    for out in (tmp_path / "direct", tmp_path / "cli"):
+        pages = _pages(out / "report.pdf")
+        assert len(pages) == 1 and "FASTENER TOLERANCES" in pages[0]
+        for v in (t_float, t_fixed, t_unproj):
+            assert sc.units.fmt(v) in pages[0], v
+        assert _squash(CAUTION) in _squash(pages[0])
+        data = json.loads((out / "results.json").read_text(encoding="utf-8"))
+        assert data["inspections"] == {} and data["features"] in ({}, [])
+        fa = data["fasteners"]
+        assert fa["cover-screws"]["position_tolerance"] == pytest.approx(t_float)
+        assert fa["cover-studs"]["position_tolerance"] == pytest.approx(t_fixed)
+        assert fa["cover-studs"]["position_tolerance_unprojected"] == pytest.approx(t_unproj)
+        assert data["caution"] == CAUTION
+    # --size has nothing to act on: one clear message, exit 2
+    code, _, err = _run("report", scene, "--out", tmp_path / "bad", "--size", "x=6.0")
+    assert code == 2 and "no features" in err and "Traceback" not in err

@@ -24,9 +24,19 @@ from matplotlib.backends.backend_pdf import PdfPages
 from matplotlib.figure import Figure
 from matplotlib.patches import Rectangle
 
-from geom.analysis import SceneResult, clearance_at, mate_verdict, result_to_json, term
-from geom.boundaries import FeatureState, effective_size, tolerance_allowed
-from geom.model import Kind
+from geom.analysis import (
+    SceneResult,
+    clearance_at,
+    fits,
+    line_to_line,
+    mate_verdict,
+    result_to_json,
+    term,
+    tolerance_allowed_derived,
+)
+from geom.boundaries import FeatureState, bonus, effective_size
+from geom.conformance import readings_disagree, verdict_word
+from geom.model import Characteristic, Kind, Material
 from geom.readout import CAUTION, feature_heading, feature_rows, mate_lines
 from viewer import figures as F
 from viewer import style as S
@@ -125,18 +135,22 @@ def effect_on_fit(res: SceneResult, item: Item, states: dict[str, FeatureState])
             f"The size limits alone (hole {mmc} − pin {mmc} = {u.fmt(m.clearance_min_size, signed=True)} {uv}; "
             f"loosest hole − pin at least material = {u.fmt(m.clearance_max, signed=True)} {uv}) "
             + ("hide this: the geometric tolerances consume that allowance."
-               if m.clearance_min < m.clearance_min_size - 1e-12 and not m.assembles else
+               if not m.assembles and fits(m.clearance_min_size) else
                "are reduced by the geometric tolerances to the worst-case value above.")
         )
         if not is_worst_case(res, item, states):
             hs, ps = states[sub.hole.id], states[sub.pin.id]
             c = clearance_at(sub.hole, sub.pin, hs, ps)
-            verdict = "the pin overlaps the hole by" if c < -1e-9 else "clearance"
+            if not fits(c):
+                at = f"the pin overlaps the hole by {u.fmt(-c)} {uv}"
+            elif line_to_line(c):
+                at = "line-to-line (zero clearance)"
+            else:
+                at = f"clearance {u.fmt(c)} {uv}"
             out.append(
-                f"What-if pictures: hole '{sub.hole.id}' at {u.fmt(hs.size)} (tolerance allowed "
-                f"{u.fmt(tolerance_allowed(sub.hole, hs.size))}), pin '{sub.pin.id}' at {u.fmt(ps.size)} "
-                f"(tolerance allowed {u.fmt(tolerance_allowed(sub.pin, ps.size))}), all of it used: "
-                f"{verdict} {u.fmt(abs(c))} {uv} at these sizes."
+                f"What-if pictures: hole '{sub.hole.id}' at {u.fmt(hs.size)} ({_allowed_at(sub.hole, hs.size, u, std)}), "
+                f"pin '{sub.pin.id}' at {u.fmt(ps.size)} ({_allowed_at(sub.pin, ps.size, u, std)}), all of it used: "
+                f"{at} at these sizes."
             )
         out += [f"Assumes: {a}." for a in m.assumptions]
     else:
@@ -147,14 +161,22 @@ def effect_on_fit(res: SceneResult, item: Item, states: dict[str, FeatureState])
         out.append(f"This {f.kind.value} is in no mate of the scene. {what[0].upper() + what[1:]} is set by its "
                    f"worst-case boundary: {side.formula(u, std)} {uv}.")
         if r.virtual_condition.value is not None:
-            out.append(f"Virtual condition: {r.virtual_condition.formula(u, std)} {uv}.")
+            vc_name = term(r.virtual_condition.key, std)[1]
+            out.append(f"{vc_name[0].upper() + vc_name[1:]}: {r.virtual_condition.formula(u, std)} {uv}.")
         if not is_worst_case(res, item, states):
             st = states[f.id]
-            out.append(f"What-if pictures: at {u.fmt(st.size)} the tolerance allowed is "
-                       f"{u.fmt(tolerance_allowed(f, st.size))} and the mating-side boundary "
-                       f"{u.fmt(effective_size(f, st))} {uv}.")
+            out.append(f"What-if pictures: at {u.fmt(st.size)}, {_allowed_at(f, st.size, u, std)}; the mating-side "
+                       f"boundary {u.fmt(effective_size(f, st))} {uv}.")
         out += [f"Note: {n}" for n in r.notes]
     return out
+
+
+def _allowed_at(f, size: float, units, std) -> str:
+    """``tolerance allowed = t + bonus = ...`` at a produced size, from geom's formula (ISO:
+    "increase"); "no geometric tolerance" for a size-only feature."""
+    if f.tolerance is None:
+        return "no geometric tolerance"
+    return tolerance_allowed_derived(f, bonus(f, size)).formula(units, std)
 
 
 # ------------------------------------------------------------------------------------ the page
@@ -220,7 +242,9 @@ def _head(p: _Page, res: SceneResult, title: str, subtitle: str, char: str, tol:
     x0, W = MARGIN, PAGE[0] - 2 * MARGIN
     # ---------------------------------------------------------------- header
     p.text(x0, 0.34, title, fontsize=13, weight="bold")
-    p.text(x0 + (1.45 if len(title) <= 12 else 0.135 * len(title) + 0.1), 0.37, subtitle, fontsize=8.5)
+    xs = x0 + (1.45 if len(title) <= 12 else 0.135 * len(title) + 0.1)
+    room = x0 + W - 1.75 - xs  # the report number sits at the right
+    p.text(xs, 0.37, subtitle, fontsize=min(8.5, max(6.0, room * 72 / (0.53 * max(len(subtitle), 1)))))
     p.text(x0 + W, 0.34, f"report no. {rep.get('report_number') or '—'}", fontsize=9, ha="right", weight="bold")
     p.text(x0 + W, 0.55, f"page {page_no} of {pages}", fontsize=7.5, ha="right")
     p.text(x0, 0.58, sc.title + (f"   ({Path(sc.source).name})" if sc.source else ""), fontsize=8.5)
@@ -249,9 +273,16 @@ def _head(p: _Page, res: SceneResult, title: str, subtitle: str, char: str, tol:
     return y
 
 
+DESIGN_TITLE = "DESIGN INTENT"
+DESIGN_SUBTITLE = "worst-case fit from the drawing limits — not a verdict on the measured part"
+
+
 def build_page(res: SceneResult, item: Item, states, image3d: np.ndarray | None, page_no: int, pages: int,
-               view: str = "iso") -> Figure:
-    """One evidence page (A4 portrait) for a mate or a lone feature."""
+               view: str = "iso", design_intent: bool = False) -> Figure:
+    """One evidence page (A4 portrait) for a mate or a lone feature.
+
+    ``design_intent``: the report also judges measured parts (inspection pages), so this page is
+    titled as what it is, the worst case the drawing allows, and not as a verdict on the part."""
     sc = res.scene
     u, std = sc.units, sc.standard
     sub = item.subject
@@ -260,7 +291,11 @@ def build_page(res: SceneResult, item: Item, states, image3d: np.ndarray | None,
         p = _Page(fig)
         x0, W = MARGIN, PAGE[0] - 2 * MARGIN
         char, tol = _requirement_parts(item, u)
-        y = _head(p, res, "FIT EVIDENCE", "worst-case mating of toleranced holes and pins", char, tol, page_no, pages)
+        if design_intent:
+            title, subtitle = DESIGN_TITLE, DESIGN_SUBTITLE
+        else:
+            title, subtitle = "FIT EVIDENCE", "worst-case mating of toleranced holes and pins"
+        y = _head(p, res, title, subtitle, char, tol, page_no, pages)
         # ---------------------------------------------------------------- subject and verdict
         y += 0.08
         if sub.is_mate:
@@ -282,6 +317,8 @@ def build_page(res: SceneResult, item: Item, states, image3d: np.ndarray | None,
         y += 0.19
         col = S.INTERFERENCE if bad else (S.OK if sub.is_mate else S.TEXT)
         mark = "✗ " if bad else ("✓ " if sub.is_mate else "")
+        if design_intent:
+            verdict = "design intent: " + verdict
         p.box(x0, y, W, 0.3, lw=2.0 if bad else 1.0, ec=col)
         p.text(x0 + 0.1, y + 0.15, mark + verdict, fontsize=10, weight="bold", color=col, va="center")
         y += 0.36
@@ -305,7 +342,9 @@ def build_page(res: SceneResult, item: Item, states, image3d: np.ndarray | None,
                 rect = p.rect(sx + 0.38, sy + 0.2, gw - 0.4, gh - 0.55)
             F.draw_view(name, res, item.ref, states, fig=fig, rect=rect, fontsize=fs2)
             if name == "bonus":
-                p.text(sx, sy, "Bonus: tolerance allowed vs produced size", fontsize=fs2 * 1.2, weight="bold")
+                b = term("bonus", std)[0]
+                p.text(sx, sy, f"{b[0].upper() + b[1:]}: tolerance allowed vs produced size", fontsize=fs2 * 1.2,
+                       weight="bold")
         for sx, sy in slots:
             p.box(sx - 0.03, sy - 0.03, gw + 0.06, gh + 0.02, lw=0.4, ec=S.PART)
         y += 2 * gh + gap + 0.08
@@ -356,7 +395,15 @@ def _numbers(p: _Page, res: SceneResult, item: Item, x0: float, y: float, W: flo
         yy = y + 0.1 * len(head_lines) + 0.04
         for i, (qty, val, formula) in enumerate(feature_rows(r, u, std)):
             first = formula.split(" = ", 1)[0].split(":", 1)[0]
-            shown = formula if first in abbr else f"{qty}: {formula}"
+            if first not in abbr:
+                shown = f"{qty}: {formula}"
+            elif qty != abbr[first] and qty.startswith(abbr[first]):
+                rest = qty[len(abbr[first]):].strip()  # e.g. "(within the projected height)"
+                if rest.startswith("(") and rest.endswith(")") and rest.count("(") == 1:
+                    rest = rest[1:-1]
+                shown = f"{formula}, {rest}"
+            else:
+                shown = formula
             wrapped = textwrap.wrap(shown, int((colw - 0.8) * 72 / (fs * 0.53)), subsequent_indent="   ")
             if i % 2 == 0:
                 p.box(x, yy - 0.012, colw - 0.1, rowh * len(wrapped), lw=0, fill=True, fc="#EEF0F2", ec="none")
@@ -541,7 +588,8 @@ def write_report(res: SceneResult, out_dir, sizes: dict[str, float] | None = Non
                 pp.savefig(build_inspection_page(res, insp, imgs, page, pages, caption, legend, names))
             for item in items:
                 page += 1
-                fig = build_page(res, item, page_states[item.file_key], images3d[item.file_key], page, pages, view)
+                fig = build_page(res, item, page_states[item.file_key], images3d[item.file_key], page, pages, view,
+                                 design_intent=bool(inspections))
                 pp.savefig(fig)
             for group in fastener_pages:
                 page += 1
@@ -564,13 +612,9 @@ def write_report(res: SceneResult, out_dir, sizes: dict[str, float] | None = Non
 
 INSPECTED_CHECKS = ("size", "axis", "surface")
 SECTION_ROWS = 12  # longest section table printed whole; longer ones are condensed
-CHECK_MEANING = {
-    "size": "two-point local sizes within the limits; where the envelope applies, the unrelated mating "
-            "envelope not beyond the MMC size",
-    "axis": "the derived median line (section centres) within the tolerance allowed, t + bonus",
-    "surface": "the related envelope (held to the datums) does not violate the virtual condition: "
-               "what a functional gauge checks",
-}
+DISAGREE_TITLE = "NOTE: READINGS THAT DISAGREE"
+LOWER_SIZES = (6.0, 5.7, 5.4, 5.1, 4.8)  # text sizes tried for the inspection page's lower blocks
+IMAGE_MIN = 1.3  # smallest height of the inspection pictures, inches
 
 
 def inspected_ids(scene, points: dict[str, str] | None = None) -> list[str]:
@@ -591,26 +635,92 @@ def scene_inspections(scene, points: dict[str, str] | None = None, bonus_basis: 
             for fid in inspected_ids(scene, points)}
 
 
-def _check_word(c) -> tuple[str, str]:
-    """Verdict word and colour of a geom.inspect Check."""
-    if c.conforms is None:
-        return "NOT EVALUATED", S.NOT_PROVEN
-    if c.conforms:
-        return "CONFORMS", (S.OK if not c.outcome.startswith("not proven") else S.NOT_PROVEN)
-    return "FAILS", S.INTERFERENCE
+def _vc_terms(insp) -> tuple[str, str]:
+    """(abbreviation, name) of the feature's virtual condition in the standard's terms."""
+    t = insp.feature.tolerance
+    key = "vc_LMC" if t is not None and t.material is Material.LMC else "vc_MMC"
+    return term(key, insp.standard)
 
 
-def inspection_headline(insp) -> tuple[str, bool]:
-    """(one-line verdict for the page's box, whether a reading fails)."""
-    checks = [getattr(insp, f"{n}_check") for n in INSPECTED_CHECKS]
-    failed = [c for c in checks if c.conforms is False]
-    if failed:
-        parts = [f"{c.name.upper()} READING FAILS: {c.detail} ({c.outcome})" for c in failed]
-        return "✗ " + "; ".join(parts), True
-    missing = [c.name for c in checks if c.conforms is None]
-    if missing:
-        return f"✓ no reading fails; not evaluated: {', '.join(missing)}", False
-    return "✓ the size, axis and surface readings all conform", False
+def _envelope_words(insp, related: bool) -> str:
+    """The name of the envelope a reading uses, in the standard's terms (from geom.inspect)."""
+    from geom.inspect import envelope_name
+
+    t = insp.feature.tolerance
+    lmc = t is not None and t.material is Material.LMC
+    if t is not None and (t.characteristic is Characteristic.STRAIGHTNESS or not t.datums):
+        related = False
+    position = t is not None and t.characteristic is Characteristic.POSITION
+    return envelope_name(insp.standard, insp.feature.kind is Kind.HOLE, related, lmc, position)
+
+
+def _envelope_abbr(insp) -> str:
+    """AME / AMME (ASME), GX / GN (ISO): geom.inspect.envelope_abbr of the feature."""
+    from geom.inspect import envelope_abbr
+
+    t = insp.feature.tolerance
+    return envelope_abbr(insp.standard, insp.feature.kind is Kind.HOLE, t is not None and t.material is Material.LMC)
+
+
+def check_meaning(insp, name: str) -> str:
+    """What a reading checks, in the standard's terms and with the governing axis reading."""
+    std = insp.standard
+    t = insp.feature.tolerance
+    B = term("bonus", std)[0]
+    if name == "size":
+        text = "two-point local sizes within the limits"
+        if insp.envelope_check is not None:
+            text += f"; {insp.envelope_check.name}: {_envelope_abbr(insp)} not beyond {term('mmc', std)[0]}"
+        return text
+    if t is None:
+        return "no geometric tolerance: not checked"
+    if name == "axis":
+        basis = insp.axis.basis if insp.axis is not None else "axis"
+        return f"the {basis} within the tolerance allowed, t + {B}"
+    if t.material is Material.RFS:
+        return f"{term('rfs', std)[1]}: no virtual condition, so no surface reading"
+    vc = _vc_terms(insp)[0]
+    if t.projected:
+        return (f"axis of the {_envelope_abbr(insp)} (the gauge pin that fits) over the projected height, "
+                "within the tolerance allowed")
+    held = "held to the datum" if t.datums and t.characteristic is not Characteristic.STRAIGHTNESS else "unrelated"
+    return f"{_envelope_abbr(insp)} ({held}) does not violate {vc}: what a functional gauge checks"
+
+
+def reading_rows(insp) -> list[tuple[str, str, object, str]]:
+    """(label, role, check, meaning) of every reading shown: size, the axis reading that applies,
+    surface, then the other axis reading ("does not govern"). ``role``: "governs" for a reading
+    the part verdict uses (``insp.verdict.governing``), "shown" for one it does not use."""
+    gov = set(insp.verdict.governing) if insp.verdict is not None else set()
+    rows = []
+    for n in INSPECTED_CHECKS:
+        c = getattr(insp, f"{n}_check")
+        label = f"axis ({insp.axis.basis})" if n == "axis" and insp.axis is not None else n
+        rows.append((label, "governs" if n in gov else "shown", c, check_meaning(insp, n)))
+    oc = insp.other_axis_check
+    if oc is not None:
+        other = insp.feature_axis if insp.axis is insp.median_axis else insp.median_axis
+        basis = other.basis if other is not None else oc.name
+        rows.append((f"axis ({basis})", "does not govern", oc,
+                     f"the {basis}, judged the same way"))
+    return rows
+
+
+_ROLE_TAG = {"governs": " (governs)", "shown": "", "does not govern": " (does not govern)"}
+
+
+def _disagreements(insp) -> bool:
+    """Whether two readings of the feature disagree (geom.conformance.readings_disagree)."""
+    return (readings_disagree(insp.axis_check, insp.surface_check)
+            or readings_disagree(insp.other_axis_check, insp.axis_check))
+
+
+def _headline(insp) -> tuple[str, str, tuple[str, ...], str]:
+    """(headline, colour role, notes, why) of the part verdict, exactly as geom gives them."""
+    v = insp.verdict
+    if v is None:  # geom always sets it; kept so an old result cannot crash the page
+        return "NOT EVALUATED", "none", (), ""
+    return v.headline, v.role, tuple(v.notes), v.why
 
 
 def condensed_sections(sections, n_max: int = SECTION_ROWS) -> list[int]:
@@ -700,7 +810,8 @@ def _sections_table(p: _Page, insp, x: float, y: float, w: float, fs: float) -> 
 
 def _envelope_vs_ls(p: _Page, insp, x: float, y: float, w: float, fs: float) -> float:
     """The envelopes (what the standard and a gauge use) beside the least-squares fit (a CMM's
-    usual default), every value from the InspectionResult."""
+    usual default), and both axis readings with the one that applies; every value and every
+    envelope name from the InspectionResult (geom.inspect)."""
     u = insp.units
     fmt = u.fmt
     ls = insp.least_squares
@@ -709,36 +820,55 @@ def _envelope_vs_ls(p: _Page, insp, x: float, y: float, w: float, fs: float) -> 
     lmc = insp.least_material is not None
     env_u = insp.least_material if lmc else insp.unrelated
     env_r = insp.least_material_related if lmc else insp.related
-    short = "AMME" if lmc else "AME"
-    ax = insp.axis
-    axis_word, axis_col = _check_word(insp.axis_check)
 
-    def ls_cell(v):
-        return fmt(v) if ls is not None and v is not None else "—"
+    def d(e):
+        return "—" if e is None else f"⌀{fmt(e.diameter)}"
 
-    rows = [("", "envelopes (gauge)", "least squares (CMM)")]
+    rows = [("", "envelope", "least squares (CMM)")]
     cols = [None]
-    rows.append(("size", f"unrelated {short} ⌀{fmt(None if env_u is None else env_u.diameter)}",
-                 "—" if ls is None else f"LS cylinder ⌀{fmt(ls.size)}"))
+    if env_u is not None or ls is not None:
+        rows.append((env_u.name if env_u is not None else "envelope", d(env_u),
+                     "—" if ls is None else f"⌀{fmt(ls.size)} (cylinder)"))
+        cols.append(None)
+    if env_r is not None and env_r is not env_u:
+        rows.append((env_r.name, d(env_r), "—"))
+        cols.append(None)
+    rows.append((B, fmt(insp.bonus), "—" if ls is None or ls.bonus is None else fmt(ls.bonus)))
     cols.append(None)
-    rows.append(("held to datum", f"related {short} ⌀{fmt(None if env_r is None else env_r.diameter)}", "—"))
-    cols.append(None)
-    basis = f"{insp.bonus_basis} {short}"
-    rows.append((B, f"{fmt(insp.bonus)} (from the {basis})", ls_cell(None if ls is None else ls.bonus)))
-    cols.append(None)
-    rows.append(("tolerance allowed", fmt(insp.tolerance_allowed), ls_cell(None if ls is None else ls.tolerance_allowed)))
-    cols.append(None)
-    rows.append(("axis reading", f"{fmt(None if ax is None else ax.deviation)} (section centres)",
-                 f"{ls_cell(None if ls is None else ls.axis_deviation)}" + (" (LS cylinder axis)" if ls else "")))
-    cols.append(None)
-    if ls is not None and ls.axis_conforms is not None:
-        lw_, lc = ("CONFORMS", S.OK) if ls.axis_conforms else ("FAILS", S.INTERFERENCE)
+    # the readings and their limit, shown with the same digits (Units.fmt_cmp)
+    readings = [a for a in (insp.feature_axis, insp.median_axis) if a is not None]
+    if insp.axis is not None and all(a is not insp.axis for a in readings):
+        readings.insert(0, insp.axis)
+    lim = insp.tolerance_allowed
+    devs = [a.deviation for a in readings]
+    known = [v for v in devs if v is not None]
+    if lim is not None and known:
+        *shown, lim_s = u.fmt_cmp(*known, lim)
     else:
-        lw_, lc = "—", None
-    rows.append(("axis verdict", axis_word, lw_))
-    cols.append((None, axis_col, lc))
-    widths = [1.0, (w - 1.0) * 0.52, (w - 1.0) * 0.48]
-    y = _table(p, x, y, widths, rows, fs, aligns=["left", "left", "left"], colours=cols)
+        shown, lim_s = [fmt(v) for v in known], fmt(lim)
+    it = iter(shown)
+    dev_s = [next(it) if v is not None else "—" for v in devs]
+    ls_dev = ls_lim = "—"
+    if ls is not None and ls.axis_deviation is not None and ls.tolerance_allowed is not None:
+        ls_dev, ls_lim = u.fmt_cmp(ls.axis_deviation, ls.tolerance_allowed)
+    elif ls is not None and ls.tolerance_allowed is not None:
+        ls_lim = fmt(ls.tolerance_allowed)
+    rows.append(("tolerance allowed", lim_s, ls_lim))
+    cols.append(None)
+    for i, (a, v) in enumerate(zip(readings, dev_s)):
+        gov = a is insp.axis
+        rows.append((f"{a.basis} reading: {'governs' if gov else 'does not govern'}", v,
+                     (ls_dev + (" (cylinder axis)" if ls_dev != "—" else "")) if i == 0 else ""))
+        cols.append((None if gov else GREY, None if gov else GREY, None))
+    word, role = verdict_word(insp.axis_check)
+    if ls is not None and ls.axis_conforms is not None:
+        lw_ = ("within" if ls.axis_conforms else "beyond") + " the tolerance allowed (not a verdict)"
+    else:
+        lw_ = "—"
+    rows.append((f"axis verdict ({insp.axis.basis})" if insp.axis is not None else "axis verdict", word, lw_))
+    cols.append((None, S.ROLE_COLOUR[role], None))
+    widths = [w * 0.45, w * 0.2, w * 0.35]
+    y = _wrapped_table(p, x, y, widths, rows, fs, cols, bold=(0,))
     if ls is None:
         note = "no measured points: the least-squares fit needs points (typed values only)."
         p.text(x, y + 0.01, note, fontsize=fs * 0.85, color=GREY)
@@ -763,10 +893,34 @@ class _DryPage(_Page):
         return None
 
 
+def _basis_words(insp) -> str:
+    """The envelope the bonus (ISO: increase) is taken from, by its name in the standard."""
+    if insp.bonus_basis == "unrelated":
+        return f"{_envelope_words(insp, False)} (the default)"
+    if insp.bonus_basis == "related":
+        return f"{_envelope_words(insp, True)} (chosen with --bonus-basis related)"
+    return insp.bonus_basis
+
+
+def _paragraphs(p: _Page, x0: float, y: float, W: float, fs: float, title: str, paras, gid: str) -> float:
+    if not paras:
+        return y
+    y += 0.05
+    p.text(x0, y, title, fontsize=7, weight="bold")
+    y += 0.14
+    body = []
+    for para in paras:
+        body += _wrap(para, W, fs)
+    p.text(x0, y, "\n".join(body), fontsize=fs, linespacing=1.2, gid=gid)
+    return y + 0.1 * len(body) + 0.04
+
+
 def _inspection_lower(p: _Page, insp, x0: float, y: float, W: float, fs: float) -> float:
-    """Sections | envelopes beside least squares and the bonus basis; the verdicts; the
-    explanation. Returns the y below."""
+    """Sections | envelopes beside least squares and the bonus basis; the readings and their
+    verdicts; the notes on readings that disagree; the explanation. Returns the y below."""
     u = insp.units
+    std = insp.standard
+    B = term("bonus", std)[0]
     colw = (W - 0.25) / 2
     yl = yr = y
     if insp.sections:
@@ -777,54 +931,63 @@ def _inspection_lower(p: _Page, insp, x0: float, y: float, W: float, fs: float) 
     p.text(xr, yr, "ENVELOPES BESIDE LEAST SQUARES", fontsize=7, weight="bold")
     yr = _envelope_vs_ls(p, insp, xr, yr + 0.14, wr, fs)
     yr += 0.06
-    basis_words = {"unrelated": "unrelated envelope (any orientation; the default, ASME Y14.5-2009 and later, "
-                                "from memory)",
-                   "related": "related envelope (held to the datums; chosen with --bonus-basis related)"}
-    p.text(xr, yr, "BONUS BASIS AND TOLERANCE ALLOWED", fontsize=7, weight="bold")
+    p.text(xr, yr, f"{B.upper()} BASIS AND TOLERANCE ALLOWED", fontsize=7, weight="bold")
     yr += 0.14
-    lines = _wrap(f"bonus basis: {basis_words.get(insp.bonus_basis, insp.bonus_basis)}", wr, fs, "   ")
+    lines = _wrap(f"{B} basis: {_basis_words(insp)}", wr, fs, "   ")
     for x in insp.formulas:
         lines += _wrap(x, wr, fs, "   ")
     p.text(xr, yr, "\n".join(lines), fontsize=fs, linespacing=1.2, gid="formulas")
     yr += 0.1 * len(lines) + 0.02
-    if insp.axis is not None:
-        al = _wrap(f"axis reading: {insp.axis.method}", wr, fs * 0.88, "   ")
-        p.text(xr, yr, "\n".join(al), fontsize=fs * 0.88, color=GREY, linespacing=1.15)
-        yr += 0.088 * len(al) + 0.02
     y = max(yl, yr) + 0.06
-    # ---------------------------------------------------------------- verdicts
+    # ---------------------------------------------------------------- both axis readings
+    shown_axes = [a for a in (insp.feature_axis, insp.median_axis) if a is not None]
+    if insp.axis is not None and all(a is not insp.axis for a in shown_axes):
+        shown_axes.insert(0, insp.axis)
+    al = [f"{a.basis} reading ({'governs' if a is insp.axis else 'does not govern'}): {a.method}" for a in shown_axes]
+    notes = insp.verdict.notes if insp.verdict is not None else ()
+    if insp.axis_governs and not any(insp.axis_governs in n for n in notes):
+        al.append(f"which axis reading applies: {insp.axis_governs}")
+    if al:
+        p.text(x0, y, "AXIS READINGS", fontsize=7, weight="bold")
+        lines = []
+        for a in al:
+            lines += _wrap(a, W - 0.95, fs * 0.9, "   ")
+        p.text(x0 + 0.95, y + 0.01, "\n".join(lines), fontsize=fs * 0.9, linespacing=1.15, gid="axis-readings")
+        y += max(0.14, 0.09 * len(lines) + 0.04)
+    # ---------------------------------------------------------------- readings and verdicts
     rule = (f"ISO 14253-1 decision rule, U = {u.fmt(insp.uncertainty)} {u.value} (k = 2): a verdict is proven "
             "only when the value lies at least U inside the limit (conformance) or at least U beyond it "
             "(nonconformance); within U of a limit neither is proven" if insp.uncertainty is not None else
             "no uncertainty U given: decided on the measured values alone (ISO 14253-1 needs U)")
-    p.text(x0, y, "VERDICTS", fontsize=7, weight="bold")
+    p.text(x0, y, "READINGS", fontsize=7, weight="bold")
     rl = _wrap(rule, W - 0.75, fs * 0.9)
     p.text(x0 + 0.75, y + 0.01, "\n".join(rl), fontsize=fs * 0.9, color=GREY, linespacing=1.15)
     y += max(0.14, 0.09 * len(rl) + 0.04)
-    rows = [("reading", "what is checked", "measured against the limit", "on the values", "ISO 14253-1")]
+    rows = [("reading", "what is checked", "measured against the limit", "verdict", "outcome")]
     cols = [None]
-    for n in INSPECTED_CHECKS:
-        c = getattr(insp, f"{n}_check")
-        word, cc = _check_word(c)
-        rows.append((n, CHECK_MEANING[n], c.detail, word, c.outcome))
-        cols.append((None, None, None, cc, cc))
-    widths = [0.55, 2.6, 2.3, 0.85, W - 6.3]
+    for label, role, c, meaning in reading_rows(insp):
+        word, r = verdict_word(c)
+        cc = S.ROLE_COLOUR[r]
+        rows.append((label + _ROLE_TAG[role], meaning, c.detail, word, c.outcome_text))
+        cols.append((GREY if role == "does not govern" else None, None, None, cc, cc))
+    widths = [0.95, 2.25, 2.05, 1.0, W - 6.25]
     y = _wrapped_table(p, x0, y, widths, rows, fs, cols)
-    # ---------------------------------------------------------------- why
-    disagree = (insp.axis_check.conforms is not None and insp.surface_check.conforms is not None
-                and insp.axis_check.conforms != insp.surface_check.conforms)
-    paras = list(insp.explanation) + [f"Note: {n}" for n in insp.notes] + [f"Warning: {w}" for w in insp.warnings]
-    if paras:
-        y += 0.05
-        p.text(x0, y, "WHY THE AXIS AND SURFACE READINGS DISAGREE" if disagree else "EXPLANATION AND NOTES",
-               fontsize=7, weight="bold")
-        y += 0.14
-        body = []
-        for para in paras:
-            body += _wrap(para, W, fs)
-        p.text(x0, y, "\n".join(body), fontsize=fs, linespacing=1.2, gid="explanation")
-        y += 0.1 * len(body) + 0.04
-    return y
+    _, _, notes, why = _headline(insp)
+    if why:
+        wl = _wrap(f"What governs the verdict: {why}.", W, fs)
+        p.text(x0, y + 0.01, "\n".join(wl), fontsize=fs, linespacing=1.2, gid="why")
+        y += 0.1 * len(wl) + 0.03
+    # ---------------------------------------------------------------- notes and explanation
+    # the verdict's labelled notes first, then geom's explanation (why the readings disagree),
+    # the inspection's notes and warnings
+    paras = list(notes) + list(insp.explanation) + [f"Note: {n}" for n in insp.notes] + \
+        [f"Warning: {w}" for w in insp.warnings]
+    if _disagreements(insp):
+        title = DISAGREE_TITLE + (" (WHY THE AXIS AND SURFACE READINGS DISAGREE)"
+                                  if readings_disagree(insp.axis_check, insp.surface_check) else "")
+    else:
+        title = "EXPLANATION AND NOTES"
+    return _paragraphs(p, x0, y, W, fs, title, paras, "explanation")
 
 
 def _deviation_bar(fig, p: _Page, insp, x: float, y: float, w: float, fs: float) -> None:
@@ -841,7 +1004,8 @@ def _deviation_bar(fig, p: _Page, insp, x: float, y: float, w: float, fs: float)
     sm = ScalarMappable(Normalize(-m, m), S.deviation_colormap())
     cb = fig.colorbar(sm, cax=cax, orientation="horizontal")
     cb.set_ticks([-m, -m / 2, 0.0, m / 2, m])
-    cb.ax.set_xticklabels([f"{v:+.{u.decimals + 1}f}" for v in (-m, -m / 2, 0.0, m / 2, m)], fontsize=fs * 0.85)
+    ticks = (-m, -m / 2, 0.0, m / 2, m)
+    cb.ax.set_xticklabels([("+" if v > 0 else "") + t for v, t in zip(ticks, u.fmt_cmp(*ticks))], fontsize=fs * 0.85)
     cb.outline.set_linewidth(0.4)
     p.text(x, y, "\n".join(title), fontsize=fs * 0.88, linespacing=1.15)
 
@@ -851,9 +1015,11 @@ def build_inspection_page(res: SceneResult, insp, images=(), page_no: int = 1, p
     """The nonconformance evidence page of one measured feature (A4 portrait): title block, the
     3D inspection pictures (``images``: (label, uncropped render) pairs, shown side by side, with
     the scene's colour ``legend``), the section table, envelopes beside least squares, the bonus
-    basis and tolerance allowed, the three verdicts with the ISO 14253-1 outcome, the explanation
-    when the readings disagree, disposition, signatures and the caution. Every number comes from
-    ``insp`` (:class:`geom.inspect.InspectionResult`), formatted at the units' precision."""
+    basis and tolerance allowed, both axis readings (which one applies), every reading with its
+    word (:func:`geom.conformance.verdict_word`) and ISO 14253-1 outcome, the part verdict exactly
+    as geom gives it (``insp.verdict``: headline in its role's colour, why, labelled notes where
+    readings disagree), the explanation, disposition, signatures and the caution. Every number
+    comes from ``insp`` (:class:`geom.inspect.InspectionResult`), formatted at the units' precision."""
     sc = res.scene
     u = sc.units
     f = insp.feature
@@ -871,41 +1037,64 @@ def build_inspection_page(res: SceneResult, insp, images=(), page_no: int = 1, p
         subj = _wrap(_inspection_subject(insp), W, 8.0 * 1.12)
         p.text(x0, y, "\n".join(subj), fontsize=8.0, weight="bold", linespacing=1.15)
         y += 0.135 * len(subj) + 0.05
-        head, bad = inspection_headline(insp)
-        col = S.INTERFERENCE if bad else S.OK
+        head, role, notes, _ = _headline(insp)
+        col = S.ROLE_COLOUR[role]
+        bad = role == "fail"
         hl = _wrap(head, W - 0.2, 9.0 * 1.12)
-        bh = 0.165 * len(hl) + 0.25
+        # the per-reading row: each reading's word (geom.conformance.verdict_word), flowed over lines
+        items = []
+        for label, r_role, c, _m in reading_rows(insp):
+            word, wr = verdict_word(c)
+            items.append((f"{label}{_ROLE_TAG[r_role]}: {word}", S.ROLE_COLOUR[wr]))
+        if notes and _disagreements(insp):
+            items.append(("readings disagree: see NOTE below", S.TEXT))
+        fs_r = 7.0
+        flow, line, used = [], [], 0.0
+        for text, cc in items:
+            w_ = 0.62 * fs_r / 72 * len(text) + 0.25
+            if line and used + w_ > W - 0.2:
+                flow.append(line)
+                line, used = [], 0.0
+            line.append((used, text, cc))
+            used += w_
+        if line:
+            flow.append(line)
+        bh = 0.165 * len(hl) + 0.14 * len(flow) + 0.13
         p.box(x0, y, W, bh, lw=2.0 if bad else 1.0, ec=col)
         p.text(x0 + 0.1, y + 0.06, "\n".join(hl), fontsize=9.0, weight="bold", color=col, linespacing=1.1,
                gid="headline")
-        xx = x0 + 0.1
-        for n in INSPECTED_CHECKS:
-            c = getattr(insp, f"{n}_check")
-            word, cc = _check_word(c)
-            s = f"{n} reading: {word}"
-            p.text(xx, y + bh - 0.19, s, fontsize=7.2, weight="bold", color=cc)
-            xx += 1.75
-        if (insp.axis_check.conforms is not None and insp.surface_check.conforms is not None
-                and insp.axis_check.conforms != insp.surface_check.conforms):
-            p.text(x0 + W - 0.1, y + bh - 0.19, "readings disagree: see WHY below", fontsize=6.8,
-                   ha="right", style="italic")
+        yy = y + 0.06 + 0.165 * len(hl) + 0.02
+        for line in flow:
+            for dx, text, cc in line:
+                italic = dict(style="italic", weight="normal") if text.startswith("readings disagree") else \
+                    dict(weight="bold")
+                p.text(x0 + 0.1 + dx, yy, text, fontsize=fs_r, color=cc, **italic)
+            yy += 0.14
         y += bh + 0.08
         # ---------------------------------------------------------------- sizes of the blocks below
-        lower_h = _inspection_lower(_DryPage(fig), insp, x0, 0.0, W, fs)
+        dry = _DryPage(fig)
         leg = list(legend)
         leg_rows = (len(leg) + 1) // 2
         leg_h = max(0.105 * leg_rows, 0.45 if insp.radial_deviation is not None else 0.0)
         cap = [ln for ln in caption.splitlines() if ln.strip()]
+        basis = insp.axis.basis if insp.axis is not None else "axis"
+        vc_abbr = _vc_terms(insp)[0]
         cap_text = ("; ".join(cap) + ". " if cap else "") + (
-            "For the axis reading the dark median line must stay inside the green zone; for the surface reading "
-            "the dashed related envelope must clear the purple virtual-condition boundary (the gauge).")
+            f"For the axis reading the {basis} (the reading that applies) must stay inside the green zone; for "
+            f"the surface reading the dashed related envelope must clear the purple {vc_abbr} boundary (the gauge).")
         if files:
             cap_text += " Full pictures with every number: " + ", ".join(files) + "."
         cl = _wrap(cap_text, W, fs * 0.88)
         cap_h = 0.09 * len(cl)
         bottom = PAGE[1] - 1.17
-        img_h = bottom - y - 0.13 - 0.06 - leg_h - 0.04 - cap_h - 0.1 - lower_h
-        img_h = float(min(3.0, max(1.5, img_h)))
+        room = bottom - y - 0.13 - 0.06 - leg_h - 0.04 - cap_h - 0.1
+        # the tables and the explanation in the text size that leaves the pictures room (long
+        # explanations, as geom writes them where readings disagree, take a smaller size)
+        for fs_low in LOWER_SIZES:
+            img_h = room - _inspection_lower(dry, insp, x0, 0.0, W, fs_low)
+            if img_h >= IMAGE_MIN:
+                break
+        img_h = float(min(3.0, max(IMAGE_MIN, img_h)))
         # ---------------------------------------------------------------- 3D pictures
         p.text(x0, y, "3D VIEWS OF THE MEASURED FEATURE", fontsize=7, weight="bold")
         y += 0.15
@@ -934,7 +1123,7 @@ def build_inspection_page(res: SceneResult, insp, images=(), page_no: int = 1, p
         p.text(x0, y, "\n".join(cl), fontsize=fs * 0.88, color=GREY, linespacing=1.15)
         y += cap_h + 0.1
         # ---------------------------------------------------------------- tables, verdicts, explanation
-        y = _inspection_lower(p, insp, x0, y, W, fs)
+        y = _inspection_lower(p, insp, x0, y, W, fs_low)
         # ---------------------------------------------------------------- disposition, signatures, caution
         _disposition(p, x0, max(y + 0.05, PAGE[1] - 1.12), W)
         p.line(x0, PAGE[1] - 0.44, x0 + W, PAGE[1] - 0.44, lw=0.5)
@@ -943,19 +1132,22 @@ def build_inspection_page(res: SceneResult, insp, images=(), page_no: int = 1, p
     return fig
 
 
-def _wrapped_table(p: _Page, x: float, y: float, widths, rows, fs: float, colours=None) -> float:
-    """A table whose cells wrap to their column; the first row is the heading."""
+def _wrapped_table(p: _Page, x: float, y: float, widths, rows, fs: float, colours=None, bold=(0, 3)) -> float:
+    """A table whose cells wrap to their column; the first row is the heading, ``bold`` the
+    columns printed bold."""
     lh = fs * 0.0172
     total = sum(widths)
     for r, row in enumerate(rows):
-        cells = [_wrap(str(c), w - 0.06, fs) or [""] for c, w in zip(row, widths)]
+        # upper-case words (the verdict words) are wider than the average the wrap assumes
+        cells = [_wrap(str(c), w - 0.06, fs * (1.3 if str(c).isupper() else 1.0)) or [""]
+                 for c, w in zip(row, widths)]
         n = max(len(c) for c in cells)
         if r and r % 2 == 1:
             p.box(x, y - 0.012, total, lh * n + 0.02, lw=0, fill=True, fc="#EEF0F2", ec="none")
         xx = x
         for c, (w, lines) in enumerate(zip(widths, cells)):
             col = (colours[r][c] if colours and colours[r] and colours[r][c] else (GREY if r == 0 else S.TEXT))
-            kw = dict(weight="bold") if (r == 0 or c in (0, 3)) else {}
+            kw = dict(weight="bold") if (r == 0 or c in bold) else {}
             p.text(xx + 0.03, y, "\n".join(lines), fontsize=fs, color=col, linespacing=1.15, **kw)
             xx += w
         if r == 0:
@@ -980,21 +1172,22 @@ def fastener_rows(res: SceneResult, fid: str) -> list[tuple[str, str]]:
     fa = fr.fastener
     uv = u.value
     fixed = fa.kind == "fixed"
+    mmc = term("mmc", std)[0]
     rows = [("kind", "fixed: one part threaded (or press-fit) holds the fastener; the other has a clearance hole"
              if fixed else "floating: a clearance hole in each part, the fastener held by a nut"),
-            ("F", f"{u.fmt(fa.fastener)} {uv}  fastener at MMC (its largest size)"),
-            ("H", f"{u.fmt(fa.hole)} {uv}  clearance hole at MMC (its smallest size)")]
+            ("F", f"{u.fmt(fa.fastener)} {uv}  fastener at {mmc} (its largest size)"),
+            ("H", f"{u.fmt(fa.hole)} {uv}  clearance hole at {mmc} (its smallest size)")]
     if fixed:
         rows += [("P", f"{u.fmt(fa.projection)} {uv}  greatest thickness of the part with the clearance hole "
                        "(the projected height)"),
                  ("D", f"{u.fmt(fa.thread_depth)} {uv}  least thread depth (engagement) in the fixed part")]
     T = fr.position_tolerance
-    rows.append(("position tolerance", f"⌀{u.fmt(T.value)} {uv} at MMC, "
+    rows.append(("position tolerance", f"⌀{u.fmt(T.value)} {uv} at {mmc}, "
                  + ("each part" if not fixed else "each part, projected zone P on the threaded part")))
     rows.append(("formula", T.formula(u, std)))
     Tu = fr.position_tolerance_unprojected
     if Tu is not None:
-        rows.append(("no projected zone", f"⌀{u.fmt(Tu.value)} {uv} at MMC, each part (equal tolerances)"))
+        rows.append(("no projected zone", f"⌀{u.fmt(Tu.value)} {uv} at {mmc}, each part (equal tolerances)"))
         rows.append(("formula", Tu.formula(u, std) + "   from H = F + T1 + T2(1 + 2P/D) with T1 = T2 = T"))
         back = required_hole_fixed(fa.fastener, Tu.value, Tu.value, fa.projection, fa.thread_depth)
         rows.append(("check", f"F + T + T(1 + 2P/D) = {u.fmt(fa.fastener)} + {u.fmt(Tu.value)} + "
@@ -1006,19 +1199,20 @@ def fastener_rows(res: SceneResult, fid: str) -> list[tuple[str, str]]:
 def fastener_words(res: SceneResult, fid: str) -> list[str]:
     """What the numbers mean, in words (every number from geom.analysis)."""
     sc = res.scene
-    u = sc.units
+    u, std = sc.units, sc.standard
     uv = u.value
+    mmc, B = term("mmc", std)[0], term("bonus", std)[0]
     fr = res.fasteners[fid]
     fa = fr.fastener
     T = fr.position_tolerance.value
     if fa.kind == "floating":
-        return [f"Both parts may locate their clearance holes within ⌀{u.fmt(T)} {uv} at MMC: with both holes at "
+        return [f"Both parts may locate their clearance holes within ⌀{u.fmt(T)} {uv} at {mmc}: with both holes at "
                 f"their smallest size {u.fmt(fa.hole)} and their axes displaced the full amount in opposite "
                 f"directions, a fastener of {u.fmt(fa.fastener)} still passes through both. Larger holes earn "
-                "bonus tolerance (MMC)."]
+                f"more tolerance: the {B} at {mmc}."]
     Tu = fr.position_tolerance_unprojected.value
     return [f"The fastener is fixed in one part, so the two parts share the clearance H − F: each gets "
-            f"⌀{u.fmt(T)} {uv} at MMC. The threaded hole's zone is projected {u.fmt(fa.projection)} {uv} above it, "
+            f"⌀{u.fmt(T)} {uv} at {mmc}. The threaded hole's zone is projected {u.fmt(fa.projection)} {uv} above it, "
             "through the part it holds, because that is where the fastener must fit the clearance hole.",
             f"Without a projected zone a threaded hole may tilt within its tolerance over the depth D; the "
             f"fastener carries that tilt up through P and leans further out at the top of the clearance part. "

@@ -235,7 +235,7 @@ def _from_values(scene: Scene, feature: Feature, bonus_basis: str) -> Inspection
     if tol is not None and tol.material is Material.LMC:
         # typed sizes are read as the envelopes the modifier uses
         lm_un, lm_rel = mk(envelope_name(std, hole, False, True), un), mk(envelope_name(std, hole, True, True, pos), rel)
-        notes.append("LMC modifier: the typed size and related_size are read as "
+        notes.append(f"{'LMC' if std is Standard.ASME else '(L)'} modifier: the typed size and related_size are read as "
                      + ("actual minimum material envelopes" if std is Standard.ASME else
                         "minimum material side associated cylinders"))
     return _finish(scene, feature, bonus_basis, _Fit(

@@ -446,14 +446,17 @@ class SceneModel(QObject):
         self.undo_stack.push(_Edit(self, self.scene, new, text, renames))
         return None
 
-    def _install(self, scene: Scene, renames: dict[str, str] | None = None) -> None:
+    def _install(self, scene: Scene, renames: dict[str, str] | None = None,
+                 result: SceneResult | None = None) -> None:
+        # analysed first: should geom fail on the scene, nothing here has changed yet
+        result = analyse_scene(scene) if result is None else result
         for old, new in (renames or {}).items():
             if old in self.states:
                 self.states[new] = self.states.pop(old)
             if self.focus in (("feature", old), ("inspection", old)):
                 self.focus = (self.focus[0], new)
         self.scene = scene
-        self.result = analyse_scene(scene)
+        self.result = result
         self._reset_states()
         if not self._focus_valid():
             self._default_focus()
@@ -466,7 +469,9 @@ class SceneModel(QObject):
     # ------------------------------------------------------------ files
 
     def replace_scene(self, scene: Scene, path: str | None) -> None:
-        """Open / New: a fresh history, clean."""
+        """Open / New: a fresh history, clean. The scene is analysed before anything changes, so
+        a scene geom cannot analyse leaves the current one (and its history) as it was."""
+        result = analyse_scene(scene)
         self._token += 1  # answers to requests about the old scene are dropped
         self._pending = None
         self.inspection, self.inspection_key = None, None
@@ -476,7 +481,7 @@ class SceneModel(QObject):
         self.states = {}
         self.scene = scene
         self._default_focus()
-        self._install(scene)
+        self._install(scene, result=result)
         self.undo_stack.setClean()
         self.pathChanged.emit(path or "")
         self.dirtyChanged.emit(False)
@@ -506,6 +511,23 @@ class SceneModel(QObject):
         for f in self.scene.features:
             if points_outside(self.scene, f.id):
                 self.message.emit("info", self._outside_warning(f.id))
+
+    def report_points(self) -> tuple[dict[str, str], list[str]]:
+        """The points files an exported report reads, as this window reads them: (feature id ->
+        absolute path of its ``[feature.measured] points`` file, messages for the files geom would
+        refuse to read from the scene, those outside its folder that were not picked here)."""
+        points, refused = {}, []
+        for f in self.scene.features:
+            if f.measured is None or f.measured.points is None:
+                continue
+            path, _ = points_source(self.scene, f.id)
+            if points_outside(self.scene, f.id) and path not in self._picked:
+                refused.append(f"feature {f.id!r}: its points file {path} is outside the scene's folder "
+                               f"{scene_folder(self.scene)}; a scene may only name points inside its own folder "
+                               "(load the file with File > Load measured points…, or copy it there)")
+                continue
+            points[f.id] = path
+        return points, refused
 
     def _rebase_points(self, scene: Scene, target: str) -> Scene:
         """The scene with each relative points file rewritten relative to ``target``'s folder

@@ -88,6 +88,7 @@ class MessageBar(QFrame):
         lay.setContentsMargins(6, 3, 6, 3)
         self.label = QLabel()
         self.label.setWordWrap(True)
+        self.label.setTextFormat(Qt.PlainText)  # a message quotes file names and typed text: never markup
         self.label.setTextInteractionFlags(Qt.TextSelectableByMouse)
         close = QToolButton()
         close.setText("×")
@@ -260,6 +261,7 @@ class _Form(QWidget):
         self.error_label = QLabel()
         self.error_label.setObjectName("fieldError")
         self.error_label.setWordWrap(True)
+        self.error_label.setTextFormat(Qt.PlainText)  # the rule's message quotes typed text
         self.error_label.setStyleSheet(f"color: {BAD_RED};")
         self.error_label.hide()
         self.bad: QWidget | None = None
@@ -306,6 +308,25 @@ class _Form(QWidget):
 
     def apply(self) -> SceneError | None:
         raise NotImplementedError
+
+    def typed(self) -> list[str]:
+        """Keys of the text fields holding typed text not yet committed (editingFinished not
+        seen since the text was typed; a value shown from the scene is not "typed")."""
+        return [k for k, w in self.fields.items() if isinstance(w, QLineEdit) and w.isModified()]
+
+    def commit_typed(self) -> SceneError | None:
+        """Commit what is typed but not committed (Save, export, close and quit call this first, so a
+        value typed without Enter is never lost). Returns the rule's error if the scene rules reject
+        it: the field then keeps its text and is marked, as on Enter."""
+        keys = self.typed()
+        if not keys or self._filling or not self.isEnabled():
+            return None
+        err = self.apply()
+        self.mark(self.field_for(err) or keys[0] if err else None, err)
+        if err is None:
+            for k in keys:
+                self.fields[k].setModified(False)
+        return err
 
     def has_error(self) -> bool:
         return self.bad is not None or not self.error_label.isHidden()
@@ -879,6 +900,14 @@ class WhatIfPanel(QWidget):
         for g in self.groups.values():
             if g.fid in self.model.states:
                 g.sync()
+
+    def commit_typed(self) -> None:
+        """A value typed in a spin box without Enter (its keyboard tracking is off) is taken now:
+        an export then uses the size the user sees."""
+        for g in list(self.groups.values()):
+            for w in (g.size, g.direction, g.share):
+                if w.spin.hasFocus() or w.spin.lineEdit().isModified():
+                    w.spin.interpretText()
 
 
 # ---------------------------------------------------------------- verdict and readouts

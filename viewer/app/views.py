@@ -64,10 +64,44 @@ WINDOW_CENTRE = (0.0, 0.05)  # camera window centre in the window: centred, a li
 VIEW_NAMES = {"iso": "Iso", "top": "Top (through A)", "section": "Section"}
 
 
+def _non_finite(sc3, checked: dict) -> str | None:
+    """The first layer of ``sc3`` holding a mesh point or label anchor that is not a finite number
+    (an overflow, an infinity, a NaN), or None. Meshes already checked (``checked``: id -> mesh,
+    the builders hand back the same objects for the same geometry) are not read again."""
+    from vtkmodules.util.numpy_support import vtk_to_numpy
+
+    if len(checked) > 4096:
+        checked.clear()
+    for name, items in sc3.layers.items():
+        for it in items:
+            mesh = it.mesh
+            if checked.get(id(mesh)) is mesh:
+                continue
+            pts = mesh.GetPoints() if hasattr(mesh, "GetPoints") else None
+            if pts is not None and pts.GetNumberOfPoints() and not np.isfinite(vtk_to_numpy(pts.GetData())).all():
+                return name
+            checked[id(mesh)] = mesh
+    for lb in sc3.labels:
+        if not np.isfinite(np.asarray(lb.point, dtype=float)).all():
+            return lb.layer
+    return None
+
+
+class DrawError(ValueError):
+    """A picture that cannot be drawn (non-finite coordinates)."""
+
+
+def draw_problem(what: str, e: BaseException) -> str:
+    """The one line shown when a view cannot be drawn; the scene and its numbers are unchanged."""
+    why = str(e) if isinstance(e, DrawError) else f"{type(e).__name__}: {e}"
+    return (f"the {what} cannot be drawn for this scene ({why}); the scene and the readouts are unchanged")
+
+
 class View3D(QWidget):
     """The interactive 3D scene of the mate or feature in focus."""
 
     rendered = pyqtSignal()  # emitted after each full rebuild and render
+    drawFailed = pyqtSignal(str)  # the scene could not be drawn: the message shown
 
     def __init__(self, model: SceneModel, parent=None):
         super().__init__(parent)
@@ -139,6 +173,8 @@ class View3D(QWidget):
         self._labels: list[_LabelSlot] | None = None  # label actors that can take new text in place
         self._readouts: list[_TextSlot] | None = None  # readout text actors, likewise
         self._text_key = None  # (window size, layers shown) the text actors were made for
+        self._checked: dict = {}  # meshes found finite (id -> mesh)
+        self.draw_error: str | None = None  # the last drawing failure shown, until a draw succeeds
         self._timer = QTimer(self)  # the coalescing timer: one rebuild per event-loop turn
         self._timer.setSingleShot(True)
         self._timer.setInterval(0)
@@ -197,24 +233,59 @@ class View3D(QWidget):
         if self.model.focus[0] not in ("mate", "feature", "inspection"):
             self.show_nothing()
             return
-        sc3 = self.build()
+        try:  # a scene that cannot be built: the last picture stays
+            sc3 = self.build()
+            bad = None if sc3 is None else _non_finite(sc3, self._checked)
+            if bad is not None:
+                raise DrawError(f"the {LAYER_NAMES.get(bad, bad).lower()} layer has coordinates that are "
+                                "not finite numbers")
+        except Exception as e:
+            self._failed(e)
+            return
         if sc3 is None:
             return
-        self.show_scene(sc3)
+        try:
+            self.show_scene(sc3)
+        except Exception as e:  # the actors may be half replaced: the view is emptied
+            self._clear_actors()
+            self.current = None
+            self._failed(e)
+            return
+        self.draw_error = None
         self.last_update_s = time.perf_counter() - t0
+
+    def _failed(self, e: BaseException) -> None:
+        """Say inline (once per distinct problem) that the picture cannot be drawn."""
+        import traceback
+
+        msg = draw_problem("3D view", e)
+        self.caption.setText("3D view not drawn: see the message")
+        if msg != self.draw_error:
+            self.draw_error = msg
+            if not isinstance(e, DrawError):  # a builder failed: for whoever reads the terminal
+                traceback.print_exception(type(e), e, e.__traceback__, limit=3)
+            self.model.message.emit("error", msg)
+        self.drawFailed.emit(msg)
+
+    def _clear_actors(self) -> None:
+        p = self.plotter
+        try:
+            for title in list(p.scalar_bars.keys()):
+                p.remove_scalar_bar(title, render=False)
+            if getattr(p, "legend", None) is not None:
+                p.remove_legend(render=False)
+            for actors in self.actors.values():
+                for a in actors:
+                    p.remove_actor(a, render=False)
+        except Exception:  # the plotter itself is broken: nothing more to remove
+            pass
+        self.actors, self._feeds, self._sig = {}, {}, None
+        self._labels = self._readouts = None
+        self._shown_cache = None
 
     def show_nothing(self) -> None:
         """A focus with no 3D picture (a fastener pattern): the view is emptied and says so."""
-        p = self.plotter
-        for title in list(p.scalar_bars.keys()):
-            p.remove_scalar_bar(title, render=False)
-        if getattr(p, "legend", None) is not None:
-            p.remove_legend(render=False)
-        for actors in self.actors.values():
-            for a in actors:
-                p.remove_actor(a, render=False)
-        self.actors, self._feeds, self._sig = {}, {}, None
-        self._labels = self._readouts = None
+        self._clear_actors()
         self.current = None
         self._focus_key = self.model.focus
         kind, key = self.model.focus
@@ -689,6 +760,7 @@ class Views2D(QTabWidget):
             self.stale.add(key)
         self.currentChanged.connect(lambda _i: self.refresh_current())
         self._pending = False
+        self.draw_error: str | None = None  # the last drawing failure shown, until a draw succeeds
         model.statesChanged.connect(self.schedule)
         model.sceneChanged.connect(self.schedule)
         model.focusChanged.connect(self.schedule)
@@ -709,6 +781,7 @@ class Views2D(QTabWidget):
             self.setCurrentIndex(0)
 
     TABS = (("through", "Through-view"), ("section", "Section"), ("bonus", "Bonus chart"))  # figures.VIEWS_2D
+    VIEW_NAMES = {"through": "through-view", "section": "section view", "bonus": "bonus chart"}
 
     def schedule(self) -> None:
         self.stale = {k for k, _ in self.TABS}
@@ -738,21 +811,47 @@ class Views2D(QTabWidget):
         return mi if mi is not None else key
 
     def make_figure(self, key: str):
+        """The figure of the 2D view ``key``. Free text in it (names, ids, titles, report fields)
+        is drawn as written: matplotlib's math markup is off while the figure is made, so a
+        ``$`` in a name is a dollar sign (each text keeps that setting)."""
+        import matplotlib
+
         m = self.model
         sub = self.subject()
-        if isinstance(sub, tuple):  # a fastener: its section schematic (the report's), in every tab
-            from viewer.report import fastener_figure
+        with matplotlib.rc_context({"text.parse_math": False}):
+            if isinstance(sub, tuple):  # a fastener: its section schematic (the report's), in every tab
+                from viewer.report import fastener_figure
 
-            return fastener_figure(m.result, sub[1])
-        fig, _data = self.figures_mod.draw_view(key, m.result, sub, dict(m.states))
-        return fig
+                return fastener_figure(m.result, sub[1])
+            fig, _data = self.figures_mod.draw_view(key, m.result, sub, dict(m.states))
+            return fig
 
     def draw(self, key: str) -> None:
+        """Draw the view ``key``; a figure that cannot be made or drawn leaves the last one shown
+        and says why in the message bar."""
+        import matplotlib
+
         c = self.canvases[key]
-        fig = self.make_figure(key)
         old = c.figure
-        c.adopt(fig)
-        c.draw()
+        try:
+            fig = self.make_figure(key)
+            c.adopt(fig)
+            with matplotlib.rc_context({"text.parse_math": False}):
+                c.draw()
+        except Exception as e:
+            if c.figure is not old:  # back to the last figure that drew
+                c.adopt(old)
+                try:
+                    c.draw()
+                except Exception:
+                    pass
+            self.stale.discard(key)  # not retried on every paint; the next change tries again
+            msg = draw_problem(self.VIEW_NAMES.get(key, key), e)
+            if msg != self.draw_error:
+                self.draw_error = msg
+                self.model.message.emit("error", msg)
+            return
+        self.draw_error = None
         old.clear()
         self.stale.discard(key)
 

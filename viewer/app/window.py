@@ -6,18 +6,19 @@ import os
 import subprocess
 import sys
 import tempfile
+import threading
 import traceback
 from pathlib import Path
 
-from PyQt5.QtCore import QObject, QSettings, Qt, QThread, pyqtSignal
-from PyQt5.QtGui import QKeySequence
+from PyQt5.QtCore import QObject, QSettings, Qt, QThread, QUrl, pyqtSignal
+from PyQt5.QtGui import QDesktopServices, QKeySequence
 from PyQt5.QtWidgets import (
     QAction, QFileDialog, QLabel, QMainWindow, QMessageBox, QProgressDialog, QScrollArea, QSplitter,
     QTabWidget, QVBoxLayout, QWidget,
 )
 
 from geom.readout import CAUTION
-from geom.scenefile import SceneError, save
+from geom.scenefile import SceneError, load, save
 
 from . import glyphs
 from .model import SceneModel
@@ -27,9 +28,18 @@ APP_NAME = "matezone"
 RECENT_MAX = 8
 FILE_FILTER = "Scene files (*.toml);;All files (*)"
 POINTS_FILTER = "Measured points (*.csv);;All files (*)"
+SETTINGS_ENV = "MATEZONE_SETTINGS"  # an .ini file to keep the window's settings in (tests use one)
+# the file dialogs hand back the path the user picked, a symbolic link included: a scene opened
+# through a link is saved through it (geom.scenefile.save writes to the link's target)
+DIALOG_OPTIONS = QFileDialog.DontResolveSymlinks
 
 
 def settings() -> QSettings:
+    """The window's settings (recent files): the file named by $MATEZONE_SETTINGS if set, else the
+    user's matezone settings."""
+    path = os.environ.get(SETTINGS_ENV)
+    if path:
+        return QSettings(path, QSettings.IniFormat)
     return QSettings("matezone", "matezone")
 
 
@@ -44,24 +54,39 @@ def _top_aligned(widget: QWidget) -> QWidget:
 
 class ReportWorker(QObject):
     """Runs the report pipeline off the GUI thread: ``matezone report`` on the scene shown
-    (written to a temporary file under its own name), with the what-if sizes. A separate
-    process keeps the off-screen renderer apart from the window's OpenGL context."""
+    (written to a temporary file under its own name), with the what-if sizes, the bonus basis
+    and the measured points files as the window reads them (given with ``--points``: the
+    temporary copy is not in the scene's folder, so relative paths would not reach them). A
+    separate process keeps the off-screen renderer apart from the window's OpenGL context.
+
+    The command writes the folder through :func:`viewer.reportdir.write_report_atomic`: a folder
+    holding other files is refused with one message, and :meth:`cancel` (SIGTERM) leaves the
+    previous report whole (the command exits 130 with one message)."""
 
     progress = pyqtSignal(str)
     finished = pyqtSignal(str)  # output folder
-    failed = pyqtSignal(str)
+    failed = pyqtSignal(str)  # the command's one message
 
-    def __init__(self, scene, name: str, folder: str, sizes: dict[str, float], view: str):
+    def __init__(self, scene, name: str, folder: str, sizes: dict[str, float], view: str,
+                 points: dict[str, str] | None = None, bonus_basis: str = "unrelated"):
         super().__init__()
         self.scene, self.name, self.folder, self.sizes, self.view = scene, name, folder, sizes, view
+        self.points, self.bonus_basis = dict(points or {}), bonus_basis
         self.proc: subprocess.Popen | None = None
+        self.cancelled = False
+        self._lock = threading.Lock()  # cancel() comes from the GUI thread, run() is in the worker's
 
     def command(self, scene_path: str) -> list[str]:
         cmd = [sys.executable, "-m", "matezone.cli", "report", scene_path, "--out", self.folder,
-               "--view", self.view]
+               "--view", self.view, "--bonus-basis", self.bonus_basis]
         for fid, size in self.sizes.items():
             cmd += ["--size", f"{fid}={size!r}"]
+        for fid, path in self.points.items():
+            cmd += ["--points", f"{fid}={path}"]
         return cmd
+
+    def _not_written(self) -> str:
+        return (f"cancelled; nothing was written to {self.folder!r} (a previous report there is unchanged)")
 
     def run(self) -> None:
         try:
@@ -70,8 +95,13 @@ class ReportWorker(QObject):
                 save(self.scene, path)
                 self.progress.emit("rendering pictures and writing the PDF…")
                 env = dict(os.environ, PYTHONUNBUFFERED="1")
-                self.proc = subprocess.Popen(self.command(path), stdout=subprocess.PIPE, stderr=subprocess.PIPE,
-                                             text=True, env=env, cwd=str(Path(__file__).resolve().parents[2]))
+                with self._lock:
+                    if self.cancelled:
+                        self.failed.emit(self._not_written())
+                        return
+                    self.proc = subprocess.Popen(self.command(path), stdout=subprocess.PIPE,
+                                                 stderr=subprocess.PIPE, text=True, env=env,
+                                                 cwd=str(Path(__file__).resolve().parents[2]))
                 for line in self.proc.stdout:
                     if line.strip():
                         self.progress.emit(line.strip()[:120])
@@ -79,15 +109,21 @@ class ReportWorker(QObject):
                 code = self.proc.wait()
             if code == 0:
                 self.finished.emit(self.folder)
-            else:
-                lines = [x for x in err.strip().splitlines() if x.strip()]
-                self.failed.emit(lines[-1] if lines else f"matezone report exited with status {code}")
+                return
+            lines = [x.strip() for x in err.strip().splitlines() if x.strip()]
+            msg = lines[-1].removeprefix("matezone: ") if lines else ""
+            if self.cancelled and (code < 0 or not msg):  # stopped before the command could say so
+                msg = self._not_written()
+            self.failed.emit(msg or f"matezone report exited with status {code}")
         except Exception as e:  # the message goes to the window; the window keeps running
             self.failed.emit(f"{type(e).__name__}: {e}")
 
     def cancel(self) -> None:
-        if self.proc is not None and self.proc.poll() is None:
-            self.proc.terminate()
+        """Stop the report (safe from any thread): the command cleans up its temporary folder."""
+        with self._lock:
+            self.cancelled = True
+            if self.proc is not None and self.proc.poll() is None:
+                self.proc.terminate()
 
 
 class MainWindow(QMainWindow):
@@ -216,6 +252,9 @@ class MainWindow(QMainWindow):
             "Pictures, PDF and results.json, as `matezone report` writes them")
         add(fm, "export_image", "Export &image…", self.export_image, "Ctrl+Shift+E",
             "Save the 3D view, or the 2D view shown, as a picture")
+        add(fm, "open_report_folder", "Open the last report's &folder", self.open_report_folder,
+            tip="Show the folder the last report was written to")
+        self.act["open_report_folder"].setEnabled(False)
         fm.addSeparator()
         add(fm, "quit", "&Quit", self.close, QKeySequence.Quit)
 
@@ -295,9 +334,31 @@ class MainWindow(QMainWindow):
             QMessageBox.Save | QMessageBox.Discard | QMessageBox.Cancel, QMessageBox.Save)
         return {QMessageBox.Save: "save", QMessageBox.Discard: "discard"}.get(b, "cancel")
 
+    def commit_typing(self) -> SceneError | None:
+        """Commit every value typed but not yet committed (a field left without Enter, a spin box
+        value not yet taken): Save, Save As, the exports, New, Open, close and quit call this
+        first, so what the user typed is never lost. Returns the scene rules' error when a typed
+        value is rejected (the field keeps its text and is marked, as on Enter)."""
+        self.whatif.commit_typed()
+        for form in (self.feature_form, self.mate_form, self.scene_form):
+            err = form.commit_typed()
+            if err is not None:
+                return err
+        return None
+
+    def _typing_committed(self, what: str) -> bool:
+        """:meth:`commit_typing`; False (with the reason inline) when a typed value is rejected."""
+        err = self.commit_typing()
+        if err is None:
+            return True
+        self.model.message.emit("error", f"{what}: not done, a typed value is not accepted: {err}. Correct it "
+                                         "(or discard it) and try again; nothing was written")
+        return False
+
     def maybe_save(self) -> bool:
-        """True when it is fine to drop the current scene."""
-        if not self.model.dirty:
+        """True when it is fine to drop the current scene (typed values committed first)."""
+        err = self.commit_typing()
+        if not self.model.dirty and err is None:
             return True
         answer = self.confirm()
         if answer == "save":
@@ -310,45 +371,71 @@ class MainWindow(QMainWindow):
             self.model.message.emit("info", "new scene: one hole, one pin and a mate to edit")
 
     def file_open(self) -> None:
-        if not self.maybe_save():
-            return
         start = str(Path(self.model.path).parent) if self.model.path else str(Path.cwd())
-        path, _ = QFileDialog.getOpenFileName(self, "Open scene", start, FILE_FILTER)
+        path, _ = QFileDialog.getOpenFileName(self, "Open scene", start, FILE_FILTER, options=DIALOG_OPTIONS)
         if path:
-            self.open_path(path, ask=False)
+            self.open_path(path)
 
     def open_path(self, path: str, ask: bool = True) -> bool:
-        """Open a scene file; a bad file leaves the current scene and shows the CLI's message."""
+        """Open a scene file. It is read and checked first: a file the command line refuses shows
+        the CLI's message inline and leaves the current scene (and its unsaved changes) as they
+        were, without asking about them."""
+        path = str(path)
+        try:
+            scene = load(path)
+        except SceneError as e:
+            self.model.message.emit("error", str(e))
+            return False
+        except (OSError, MemoryError, RecursionError, ValueError) as e:  # the loader reports these itself
+            self.model.message.emit("error", f"{path}: cannot be read ({type(e).__name__}: {e})")
+            return False
         if ask and not self.maybe_save():
             return False
         try:
-            self.model.open(path)
-        except SceneError as e:
-            self.model.message.emit("error", str(e))
+            self.model.replace_scene(scene, path)
+        except Exception as e:  # geom cannot analyse it: the model is unchanged (it analyses first)
+            sys.stderr.write(traceback.format_exc())
+            self.model.message.emit("error", f"{path}: cannot be analysed ({type(e).__name__}: {e}); "
+                                             "the scene shown is unchanged")
             return False
         self._add_recent(path)
         self.model.message.emit("info", f"opened {path}")
         return True
 
     def file_save(self) -> bool:
+        """Save to the scene's own path (the one the user opened, a symbolic link included)."""
+        if not self._typing_committed("save"):
+            return False
         if not self.model.path:
             return self.file_save_as()
         return self._save_to(self.model.path)
 
-    def file_save_as(self) -> bool:
-        start = self.model.path or str(Path.cwd() / "scene.toml")
-        path, _ = QFileDialog.getSaveFileName(self, "Save scene as", start, FILE_FILTER)
+    def file_save_as(self, path: str | None = None) -> bool:
+        """Save under a new name (asked for when ``path`` is None). A folder, device or pipe is
+        refused with the loader's message; nothing is written then."""
+        if not self._typing_committed("save as"):
+            return False
+        if path is None:
+            start = self.model.path or str(Path.cwd() / "scene.toml")
+            path, _ = QFileDialog.getSaveFileName(self, "Save scene as", start, FILE_FILTER, options=DIALOG_OPTIONS)
         if not path:
             return False
-        if not path.endswith(".toml"):
+        path = str(path)
+        # an existing path is taken as named (a /dev/null or a folder is refused as itself, not
+        # turned into "/dev/null.toml"); a new name gets the .toml suffix
+        if not os.path.lexists(path) and not path.endswith(".toml"):
             path += ".toml"
         return self._save_to(path)
 
     def _save_to(self, path: str) -> bool:
         try:
             self.model.save(path)
+        except SceneError as e:  # not a regular file: geom refuses before writing anything
+            self.model.message.emit("error", f"{e}; nothing was written")
+            return False
         except OSError as e:
-            self.model.message.emit("error", f"{path}: cannot be written ({e.strerror or e})")
+            self.model.message.emit("error", f"{path}: cannot be written ({e.strerror or e}); "
+                                             "the file is as it was")
             return False
         self._add_recent(path)
         return True
@@ -357,10 +444,10 @@ class MainWindow(QMainWindow):
         v = settings().value("recent", [])
         if isinstance(v, str):
             v = [v]
-        return [p for p in (v or []) if p]
+        return [p for p in (v or []) if isinstance(p, str) and p]
 
     def _add_recent(self, path: str) -> None:
-        p = str(Path(path).resolve())
+        p = os.path.abspath(path)  # as named: a link stays a link (saving through it)
         files = [p] + [f for f in self.recent_files() if f != p]
         settings().setValue("recent", files[:RECENT_MAX])
 
@@ -381,34 +468,58 @@ class MainWindow(QMainWindow):
     # ------------------------------------------------------------ export
 
     def export_image(self, path: str | None = None) -> str | None:
+        if not self._typing_committed("export image"):
+            return None
         if path is None:
             path, _ = QFileDialog.getSaveFileName(
                 self, "Export image", str(Path.cwd() / "matezone.png"),
                 "3D view (*.png);;2D view shown (*.svg *.pdf *.png)")
         if not path:
             return None
+        p = Path(path)
+        if p.exists() and not p.is_file():
+            self.model.message.emit("error", f"{path}: is not a regular file (a folder, device or pipe); "
+                                             "no picture written")
+            return None
         try:
-            if Path(path).suffix.lower() in (".svg", ".pdf") and self.views2d is not None:
+            if p.suffix.lower() in (".svg", ".pdf") and self.views2d is not None:
                 self.views2d.figure().savefig(path)
             elif self.view3d is not None:
                 self.view3d.plotter.screenshot(path)
-            else:
-                self.grab().save(path)
-        except (OSError, ValueError) as e:
+            elif not self.grab().save(path):
+                raise OSError(f"{path}: cannot be written")
+        except (OSError, ValueError, OverflowError, RuntimeError) as e:
             self.model.message.emit("error", f"{path}: cannot be written ({e})")
             return None
         self.model.message.emit("info", f"picture saved: {path}")
         return path
 
     def export_report(self, folder: str | None = None) -> None:
+        """Write the report folder in a worker (``matezone report``, all or nothing). A folder
+        that holds other files is refused at once with the command's message."""
         if self._thread is not None:
             self.model.message.emit("error", "a report is already being written")
             return
+        if not self._typing_committed("export report"):
+            return
         if folder is None:
-            folder = QFileDialog.getExistingDirectory(self, "Export report into folder", str(Path.cwd()))
+            folder = QFileDialog.getExistingDirectory(self, "Export report into folder", str(Path.cwd()),
+                                                      QFileDialog.ShowDirsOnly)
         if not folder:
             return
+        from viewer.reportdir import ReportDirError, check_target
+
+        folder = os.path.abspath(folder)  # the command runs in another working folder
+        try:
+            check_target(Path(folder))  # the command's own check, before any work
+        except ReportDirError as e:
+            self.model.message.emit("error", f"report not written: {e}")
+            return
         m = self.model
+        points, refused = m.report_points()
+        if refused:
+            self.model.message.emit("error", "report not written: " + "; ".join(refused))
+            return
         sizes = {fid: st.size for fid, st in m.states.items()}
         view = self.view3d.current_view if self.view3d is not None else "iso"
         self.progress = QProgressDialog("Writing the report…", "Cancel", 0, 0, self)
@@ -416,8 +527,9 @@ class MainWindow(QMainWindow):
         self.progress.setWindowModality(Qt.WindowModal)
         self.progress.setMinimumDuration(0)
         self._thread = QThread(self)
-        self._worker = ReportWorker(m.scene, m.label if m.path else "scene.toml", folder, sizes, view)
-        self.progress.canceled.connect(self._worker.cancel)
+        self._worker = ReportWorker(m.scene, m.label if m.path else "scene.toml", folder, sizes, view,
+                                    points=points, bonus_basis=m.bonus_basis)
+        self.progress.canceled.connect(self.cancel_report)
         self._worker.moveToThread(self._thread)
         self._thread.started.connect(self._worker.run)
         self._worker.progress.connect(self._report_progress)
@@ -425,11 +537,23 @@ class MainWindow(QMainWindow):
         self._worker.failed.connect(self._report_failed)
         self._thread.start()
 
+    def cancel_report(self) -> None:
+        """Cancel the report being written (the progress dialog's Cancel): the worker stops the
+        command, which leaves the previous report whole. Called on the GUI thread, directly."""
+        if self._worker is not None:
+            self._worker.cancel()
+
+    def open_report_folder(self) -> None:
+        if self.last_export and Path(self.last_export).is_dir():
+            QDesktopServices.openUrl(QUrl.fromLocalFile(self.last_export))
+
     def _report_progress(self, what: str) -> None:
         if self.progress is not None:
             self.progress.setLabelText(what)
 
-    def _end_report(self) -> None:
+    def _end_report(self) -> bool:
+        """Tear the worker down; True if it had been cancelled."""
+        cancelled = self._worker is not None and self._worker.cancelled
         if self.progress is not None:
             self.progress.canceled.disconnect()
             self.progress.reset()
@@ -440,16 +564,19 @@ class MainWindow(QMainWindow):
             self._thread.wait()
             self._thread.deleteLater()
         self._thread, self._worker = None, None
+        return cancelled
 
     def _report_done(self, folder: str) -> None:
         self._end_report()
         self.last_export = folder
-        self.model.message.emit("info", f"report written to {folder}")
+        self.act["open_report_folder"].setEnabled(True)
+        self.model.message.emit("info", f"report written to {folder} (File > Open the last report's folder)")
 
     def _report_failed(self, msg: str) -> None:
-        self._end_report()
+        cancelled = self._end_report()
         self.last_export = None
-        self.model.message.emit("error", f"report not written: {msg}")
+        self.act["open_report_folder"].setEnabled(False)
+        self.model.message.emit("error", f"report {'cancelled' if cancelled else 'not written'}: {msg}")
 
     # ------------------------------------------------------------ errors, closing, screenshots
 
