@@ -188,3 +188,16 @@ def test_projected_hole_rows_name_the_projected_height():
         assert _squash(f"{d.formula(sc.units, sc.standard)}, within the projected height") in text
     assert _squash(f"{r.in_hole_boundary.formula(sc.units, sc.standard)}, within the hole's own length") in text
     assert sc.units.fmt(bore.mmc - t * L / P) in text  # 9.975, computed above
+
+
+def test_free_text_is_never_math_markup(tmp_path):
+    # a part name with "$" pairs (e.g. a price note) must print literally (common practice, no source)
+    import matplotlib
+    from matplotlib.figure import Figure
+
+    import viewer.figures  # noqa: F401  (sets the rule for every figure)
+
+    assert matplotlib.rcParams["text.parse_math"] is False
+    fig = Figure()
+    t = fig.text(0.1, 0.5, "bore $x$ face")
+    assert t.get_parse_math() is False

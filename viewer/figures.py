@@ -36,6 +36,10 @@ from matplotlib.patches import Arc, Circle, PathPatch, Polygon as MplPolygon, Re
 from matplotlib.path import Path as MplPath
 
 from geom.analysis import SceneResult, clearance_at, fits, line_to_line, term
+
+# Names, ids and report fields are free text: a "$" in them must print as "$", never start
+# matplotlib's math markup. No picture of ours uses math markup, so it is off for every figure.
+matplotlib.rcParams["text.parse_math"] = False
 from geom.boundaries import FeatureState, effective_size, tolerance_allowed, virtual_condition
 from geom.model import Feature, Kind, Material, Standard, Zone
 from geom.placement import AxisPlacement, worst_case_axis
