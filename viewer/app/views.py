@@ -267,16 +267,20 @@ class View3D(QWidget):
             self.model.message.emit("error", msg)
         self.drawFailed.emit(msg)
 
-    def _clear_actors(self) -> None:
+    def _remove_actors(self) -> None:
+        """Take every actor, scalar bar and legend of ours off the plotter (no render)."""
         p = self.plotter
+        for title in list(p.scalar_bars.keys()):  # pyvista keeps a registry of its bars
+            p.remove_scalar_bar(title, render=False)
+        if getattr(p, "legend", None) is not None:
+            p.remove_legend(render=False)
+        for actors in self.actors.values():
+            for a in actors:
+                p.remove_actor(a, render=False)
+
+    def _clear_actors(self) -> None:
         try:
-            for title in list(p.scalar_bars.keys()):
-                p.remove_scalar_bar(title, render=False)
-            if getattr(p, "legend", None) is not None:
-                p.remove_legend(render=False)
-            for actors in self.actors.values():
-                for a in actors:
-                    p.remove_actor(a, render=False)
+            self._remove_actors()
         except Exception:  # the plotter itself is broken: nothing more to remove
             pass
         self.actors, self._feeds, self._sig = {}, {}, None
@@ -410,13 +414,7 @@ class View3D(QWidget):
 
     def _readd(self, shown=None) -> None:
         p = self.plotter
-        for title in list(p.scalar_bars.keys()):  # pyvista keeps a registry of its bars
-            p.remove_scalar_bar(title, render=False)
-        if getattr(p, "legend", None) is not None:
-            p.remove_legend(render=False)
-        for actors in self.actors.values():
-            for a in actors:
-                p.remove_actor(a, render=False)
+        self._remove_actors()
         shown = shown if shown is not None else self._shown()
         self._cut = shown is not self.current
         added = self.scene3d_mod.add_to_plotter(p, shown, set(self.visible)) or {}
