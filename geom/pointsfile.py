@@ -22,7 +22,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .textfile import MAX_POINTS_BYTES, read_text, text_problem
+from .textfile import MAX_POINTS_BYTES, clip, read_text, text_problem
 
 COLUMNS = ("x", "y", "z")
 SECTION = "section"
@@ -33,7 +33,7 @@ _NUMBER = re.compile(r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?\Z", re.ASCII)
 
 def _cell(text: str, n: int = 40) -> str:
     """A cell or line as shown in a message: quoted, at most ``n`` characters."""
-    return repr(text) if len(text) <= n else repr(text[: n - 1] + "…")
+    return repr(clip(text, n))
 
 
 class PointsError(ValueError):

@@ -21,7 +21,7 @@ import tomllib
 from pathlib import Path
 from typing import Any
 
-from .textfile import file_slug, read_text, text_problem
+from .textfile import clip, file_slug, read_text, text_problem
 from .model import (
     Characteristic,
     Fastener,
@@ -128,12 +128,6 @@ class _Ctx:
         return v
 
 
-def _short(text: str, n: int = 160) -> str:
-    """One line of at most ``n`` characters (a message never echoes a whole file)."""
-    text = " ".join(text.split())
-    return text if len(text) <= n else text[: n - 1] + "…"
-
-
 def _join(path: str, key: str) -> str:
     return f"{path}.{key}" if path else key
 
@@ -142,7 +136,7 @@ def _show(v: Any) -> str:
     if isinstance(v, bool):
         return f"the boolean {str(v).lower()}"
     if isinstance(v, str):
-        return f"the string {_short(repr(v), 80)}"
+        return f"the string {clip(repr(v), 80)}"
     if isinstance(v, (int, float)):
         return f"the number {v!r}"
     if isinstance(v, list):
@@ -386,11 +380,11 @@ def loads(text: str, file: str = "<scene>", source: str | None = None) -> Scene:
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as e:
-        raise SceneError(file, "", f"not valid TOML: {_short(str(e))}") from None
+        raise SceneError(file, "", f"not valid TOML: {clip(str(e), 160)}") from None
     except RecursionError:
         raise SceneError(file, "", "not a usable TOML scene: arrays or tables nested too deeply") from None
     except (ValueError, MemoryError, OverflowError) as e:  # e.g. an integer of more than 4300 digits
-        raise SceneError(file, "", f"not a usable TOML scene: {_short(str(e))}") from None
+        raise SceneError(file, "", f"not a usable TOML scene: {clip(str(e), 160)}") from None
     return parse(data, file, source)
 
 

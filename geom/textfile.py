@@ -51,6 +51,16 @@ def read_text(path: str | os.PathLike, expected: str, fail: Callable[[str], NoRe
         fail(f"expected UTF-8 text, got the byte 0x{raw[e.start]:02x} at offset {e.start}")
 
 
+def clip(text: str, n: int) -> str:
+    """One line of at most ``n`` characters, for a message (a message never echoes a whole file).
+
+    >>> clip("a  b  c" + "x" * 20, 8)
+    'a b cxx…'
+    """
+    text = " ".join(text.split())
+    return text if len(text) <= n else text[: n - 1] + "…"
+
+
 def text_problem(text: str, what: str, max_len: int, newlines: bool = False) -> str | None:
     """Why a piece of user text cannot be used, or None: control characters (newlines unless
     allowed), bidirectional and other format characters (they can make text read differently
