@@ -75,6 +75,14 @@ def bonus_max(feature: Feature) -> float | None:
     return 0.0 if tol.material is Material.RFS else feature.size_tolerance
 
 
+def tolerance_max(feature: Feature) -> float:
+    """The largest tolerance the feature can be allowed within its size limits: the stated
+    tolerance plus the largest bonus (0 without a tolerance)."""
+    if feature.tolerance is None:
+        return 0.0
+    return max(tolerance_allowed(feature, feature.mmc), tolerance_allowed(feature, feature.lmc))
+
+
 def tolerance_at_mmc(feature: Feature) -> float | None:
     return None if feature.tolerance is None else tolerance_allowed(feature, feature.mmc)
 
@@ -186,6 +194,20 @@ class FeatureState:
     size: float
     share: float = 1.0
     direction_deg: float = 0.0
+
+
+def worst_case_state(feature: Feature, role_in_mate: bool = False) -> FeatureState:
+    """The default what-if state, the worst case: at MMC with the whole allowed tolerance used,
+    tilted in direction 0; a pin in a mate tilts the opposite way (180 deg), the adverse
+    combination.
+
+    >>> from geom.model import Feature, Kind
+    >>> pin = Feature("p", Kind.PIN, (7.99, 8.0), 10.0)
+    >>> worst_case_state(pin, role_in_mate=True)
+    FeatureState(size=8.0, share=1.0, direction_deg=180.0)
+    """
+    direction = 180.0 if (role_in_mate and feature.kind is Kind.PIN) else 0.0
+    return FeatureState(feature.mmc, 1.0, direction)
 
 
 def effective_size(feature: Feature, state: FeatureState) -> float:

@@ -40,11 +40,12 @@ from geom.analysis import SceneResult, clearance_at, fits, line_to_line, term
 # Names, ids and report fields are free text: a "$" in them must print as "$", never start
 # matplotlib's math markup. No picture of ours uses math markup, so it is off for every figure.
 matplotlib.rcParams["text.parse_math"] = False
-from geom.boundaries import FeatureState, effective_size, tolerance_allowed, virtual_condition
+from geom.boundaries import FeatureState, effective_size, tolerance_allowed, virtual_condition, worst_case_state
 from geom.model import Feature, Kind, Material, Standard, Zone
 from geom.placement import AxisPlacement, worst_case_axis
 from geom.throughview import ThroughView, clear_opening, swept_envelope
 from viewer import style as S
+from viewer.exaggeration import Exaggeration, auto_k  # noqa: F401  (re-exported)
 
 # ------------------------------------------------------------------------------------ style
 
@@ -77,74 +78,6 @@ def style_context():
 
 
 # ------------------------------------------------------------------------------- exaggeration
-
-
-@dataclass(frozen=True)
-class Exaggeration:
-    """Display mapping: radial deviations about ``r0`` times ``k``, axis offsets times ``k``.
-
-    A curve at true distance r from the nominal axis is drawn at ``r_disp + k (r - r0)``; an
-    axis or zone at true lateral offset x at ``k x``. ``r_disp`` equals ``r0`` unless the
-    drawing is shortened (a wide, short feature in section).
-    """
-
-    k: float
-    r0: float
-    r_disp: float
-
-    def radial(self, r):
-        return self.r_disp + self.k * (np.asarray(r, dtype=float) - self.r0)
-
-    def unradial(self, rd):
-        return self.r0 + (np.asarray(rd, dtype=float) - self.r_disp) / self.k
-
-    def lateral(self, x):
-        return self.k * np.asarray(x, dtype=float)
-
-    def unlateral(self, xd):
-        return np.asarray(xd, dtype=float) / self.k
-
-    def wall(self, s, half, side):
-        """Display x of a wall at half-width ``half`` beside an axis at lateral ``s``
-        (``side`` = +1 or -1): it moves with the axis, its radius is exaggerated about r0."""
-        return self.lateral(s) + side * self.radial(half)
-
-    def map_polar(self, xy):
-        """Map points (n, 2) given relative to the nominal axis: radius exaggerated, direction kept."""
-        xy = np.asarray(xy, dtype=float)
-        r = np.hypot(xy[:, 0], xy[:, 1])
-        r = np.where(r == 0.0, 1e-300, r)
-        return xy * (self.radial(r) / r)[:, None]
-
-    def unmap_polar(self, xy):
-        xy = np.asarray(xy, dtype=float)
-        r = np.hypot(xy[:, 0], xy[:, 1])
-        r = np.where(r == 0.0, 1e-300, r)
-        return xy * (self.unradial(r) / r)[:, None]
-
-    @property
-    def shortened(self) -> bool:
-        return abs(self.r_disp - self.r0) > 1e-12 * max(1.0, self.r0)
-
-    def label(self, units) -> str:
-        s = f"radial deviations ×{self.k:g} about ⌀{units.fmt(2 * self.r0)}"
-        if self.shortened:
-            s += "; diameter shortened (not to scale)"
-        return s + " — dimension texts are TRUE values"
-
-
-def auto_k(spread: float, r_disp: float, fill: float = 0.4) -> float:
-    """Largest 1-2-5 step k (>= 1) with k * spread <= fill * r_disp: deviations visible, shapes kept."""
-    if spread <= 0 or r_disp <= 0:
-        return 1.0
-    target = fill * r_disp / spread
-    best = 1.0
-    for e in range(0, 7):
-        for m in (1, 2, 5):
-            k = m * 10.0**e
-            if k <= target:
-                best = max(best, k)
-    return best
 
 
 # ---------------------------------------------------------------------------- subjects, states
@@ -182,13 +115,6 @@ def subject_of(res: SceneResult, subject: int | str) -> Subject:
     if f.kind is Kind.HOLE:
         return Subject(f"feature-{f.id}", title, f, None)
     return Subject(f"feature-{f.id}", title, None, f)
-
-
-def worst_case_state(feature: Feature, role_in_mate: bool = False) -> FeatureState:
-    """Default what-if state: at MMC, the whole allowed tolerance used; a pin in a mate tilts
-    the opposite way to the hole (direction 180 deg), the adverse combination."""
-    direction = 180.0 if (role_in_mate and feature.kind is Kind.PIN) else 0.0
-    return FeatureState(feature.mmc, 1.0, direction)
 
 
 def resolve_states(res: SceneResult, subject: int | str | Subject,

@@ -42,13 +42,16 @@ from vtkmodules.vtkCommonDataModel import vtkCellArray
 from geom.analysis import (
     SceneResult, clearance_at, fits, mate_formula, mate_verdict, term, tolerance_allowed_derived,
 )
-from geom.boundaries import FeatureState, bonus, effective_size, tolerance_allowed
+from geom.boundaries import (
+    FeatureState, bonus, effective_size, tolerance_allowed, tolerance_max, worst_case_state,
+)
 from geom.conformance import Outcome, readings_disagree, verdict_word
 from geom.inspect import envelope_abbr
 from geom.model import Characteristic, Feature, Kind, Material, Standard, Units, Zone
 from geom.placement import AxisPlacement, worst_case_axis
 
 from . import style as S
+from .exaggeration import NICE, auto_exaggeration, nice_floor  # noqa: F401  (re-exported)
 
 LAYERS = (
     "part",  # the part around the hole (block with the hole through it) / under the pin, translucent
@@ -142,68 +145,6 @@ class Scene3D:
 
 
 # --------------------------------------------------------------------------- exaggeration
-
-
-NICE = (8.0, 6.0, 5.0, 4.0, 3.0, 2.5, 2.0, 1.5, 1.0)
-
-
-def _nice_floor(x: float) -> float:
-    """Largest of 1, 1.5, 2, 2.5, 3, 4, 5, 6, 8 x 10^n not above x (at least 1)."""
-    if x <= 1.0:
-        return 1.0
-    e = 10.0 ** math.floor(math.log10(x))
-    for m in NICE:
-        if m * e <= x * (1 + 1e-12):
-            return m * e
-    return e
-
-
-def _zone_max(f: Feature) -> float:
-    if f.tolerance is None:
-        return 0.0
-    return max(tolerance_allowed(f, f.mmc), tolerance_allowed(f, f.lmc))
-
-
-def _zone_mmc(f: Feature) -> float:
-    return 0.0 if f.tolerance is None else tolerance_allowed(f, f.mmc)
-
-
-def _involved(res: SceneResult, mate_index: int | None, feature_id: str | None) -> list[Feature]:
-    sc = res.scene
-    if mate_index is not None:
-        m = sc.mates[mate_index]
-        return [sc.feature(m.hole), sc.feature(m.pin)]
-    if feature_id is not None:
-        return [sc.feature(feature_id)]
-    return list(sc.features)
-
-
-def auto_exaggeration(res: SceneResult, mate_index: int | None = None, feature_id: str | None = None,
-                      target: float = 0.10) -> float:
-    """Radial exaggeration that draws the largest tolerance zone of the worst case (every
-    feature at MMC; computed from the scene, not from a what-if state, so it does not jump
-    while a slider moves) at about ``target`` times the hole diameter, rounded down to a round
-    number (:data:`NICE` x 10^n), and never so large that a drawn radius falls
-    below a third of the reference radius. Without any zone the size tolerance is used."""
-    feats = _involved(res, mate_index, feature_id)
-    if not feats:  # a scene of fasteners only: nothing toleranced to scale
-        return 1.0
-    ref = feats[0]
-    D = ref.mmc
-    dev = max(_zone_mmc(f) for f in feats)
-    if dev <= 0:
-        dev = max(f.size_tolerance for f in feats)
-    if dev <= 0 or D <= 0:
-        return 1.0
-    k = target * D / dev
-    R0 = D / 2.0
-    r_min = R0
-    for f in feats:
-        lo = min(f.limits) - _zone_max(f)  # smallest radius any drawn boundary can have
-        r_min = min(r_min, lo / 2.0)
-    if r_min < R0:
-        k = min(k, (2.0 / 3.0) * R0 / (R0 - r_min))
-    return _nice_floor(k)
 
 
 @dataclass(frozen=True)
@@ -596,11 +537,6 @@ def _dist_to_polyline(p: np.ndarray, axis: np.ndarray) -> np.ndarray:
 
 
 # --------------------------------------------------------------------------- state and text
-
-
-def default_state(f: Feature, direction_deg: float = 0.0) -> FeatureState:
-    """The worst case: at MMC, using all the tolerance allowed, tilted in ``direction_deg``."""
-    return FeatureState(size=f.mmc, share=1.0, direction_deg=direction_deg)
 
 
 _CHAR = {
@@ -1036,14 +972,6 @@ def _clearance_ticks(lo: float, hi: float) -> tuple[float, ...]:
     return tuple(ticks)
 
 
-def _tolerance_max(f: Feature) -> float:
-    """The largest tolerance the feature can be allowed within its size limits (stated + largest
-    bonus; 0 without a tolerance)."""
-    if f.tolerance is None:
-        return 0.0
-    return max(tolerance_allowed(f, f.mmc), tolerance_allowed(f, f.lmc))
-
-
 def _reach(f: Feature, size: float) -> float:
     """Twice the largest distance of the drawn axis from the zone axis within the feature, at a
     produced size: the tolerance allowed; with a projected zone P the axis crosses the zone and
@@ -1204,9 +1132,9 @@ def build_mate_scene(res: SceneResult, mate_index: int, states: dict[str, Featur
     m = sc.mates[mate_index]
     hole, pin = sc.feature(m.hole), sc.feature(m.pin)
     states = dict(states or {})
-    hs = states.get(hole.id) or default_state(hole, 0.0)
-    ps = states.get(pin.id) or default_state(pin, 180.0)
-    worst = hs == default_state(hole, 0.0) and ps == default_state(pin, 180.0)
+    hs = states.get(hole.id) or worst_case_state(hole, True)
+    ps = states.get(pin.id) or worst_case_state(pin, True)
+    worst = hs == worst_case_state(hole, True) and ps == worst_case_state(pin, True)
     k = _exaggeration(exaggeration, lambda: auto_exaggeration(res, mate_index=mate_index))
     centre = hole.at
     ex = _Ex(k, centre, hole.mmc / 2.0)
@@ -1332,7 +1260,7 @@ def _projected_note(b: _Built, res: SceneResult, f: Feature, st: FeatureState, e
     zs = np.array([-P, 0.0])
     pin_g = dict(z=(-P, 0.0), pts_true=_axis_at(pts_true, zs), r_true=fa.fastener / 2.0,
                  r_draw=ex.r(fa.fastener / 2.0))
-    t_max = _tolerance_max(f)  # the fastener follows the hole's axis, within its zone
+    t_max = tolerance_max(f)  # the fastener follows the hole's axis, within its zone
     cmin, c_tight, bar = _mate_surface(b, hole_g, fast, pin_g, ex, u, rc_true, S.TEXT,
                                        tag_hole="mating hole", tag_pin="fastener", mate_layer="projected",
                                        span=(vc_hole - fa.fastener - t_max, vc_hole - fa.fastener + t_max))
@@ -1350,8 +1278,8 @@ def build_feature_scene(res: SceneResult, feature_id: str, state: FeatureState |
     fixed-fastener pattern to take them from)."""
     sc = res.scene
     f = sc.feature(feature_id)
-    st = state or default_state(f, 0.0)
-    worst = st == default_state(f, 0.0)
+    st = state or worst_case_state(f)
+    worst = st == worst_case_state(f)
     k = _exaggeration(exaggeration, lambda: auto_exaggeration(res, feature_id=feature_id))
     centre = f.at
     ex = _Ex(k, centre, f.mmc / 2.0)
@@ -1535,7 +1463,7 @@ def _inspection_exaggeration(res: SceneResult, insp) -> float:
         far.append(abs(insp.virtual_condition / 2 - R0))
     m = max(far, default=0.0)
     if m > 0 and k * m > 0.5 * R0:
-        k = _nice_floor(0.5 * R0 / m)
+        k = nice_floor(0.5 * R0 / m)
     return k
 
 

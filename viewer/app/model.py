@@ -401,7 +401,7 @@ class SceneModel(QObject):
     def _worst_case(self, f: Feature) -> B.FeatureState:
         """MMC, all of the tolerance used; a pin in a mate tilts opposite to the hole (the same
         default the 2D views and the report use)."""
-        from viewer.figures import worst_case_state
+        from geom.boundaries import worst_case_state
 
         in_mate = any(f.id in (m.hole, m.pin) for m in self.scene.mates)
         return worst_case_state(f, in_mate)

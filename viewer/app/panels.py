@@ -3,6 +3,8 @@ readout table, the fit verdict and the message bar. Each observes the :class:`Sc
 
 from __future__ import annotations
 
+from html import escape as _html_escape
+
 import re
 from pathlib import Path
 
@@ -57,10 +59,6 @@ def _opt(text: str):
 
 def _num_text(v) -> str:
     return "" if v is None else repr(float(v)).removesuffix(".0") if float(v).is_integer() else repr(float(v))
-
-
-def _html(text: str) -> str:
-    return text.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;")
 
 
 def _combo(values, labels=None) -> QComboBox:
@@ -521,7 +519,7 @@ class FeatureForm(_Form):
         r = self.model.result.features[f.id]
         u = sc.units
         self._filling = True
-        self.heading.setText(f"<b>{_html(ui_text(feature_heading(r, u)))}</b>")
+        self.heading.setText(f"<b>{_html_escape(ui_text(feature_heading(r, u)))}</b>")
         F = self.fields
         F["id"].setText(f.id)
         F["name"].setText(f.name)
@@ -807,7 +805,7 @@ class InspectionControls(QGroupBox):
         res = m.shown_inspection()
         if res is not None and res.source == "points":
             n = 0 if res.points is None else len(res.points)
-            text = f"{n} points in {len(res.sections)} sections from <b>{_html(Path(res.source_file).name)}</b>"
+            text = f"{n} points in {len(res.sections)} sections from <b>{_html_escape(Path(res.source_file).name)}</b>"
         elif res is not None:
             text = "inspection values typed in the scene file"
         elif meas is None:
@@ -983,7 +981,7 @@ class VerdictBanner(QFrame):
         self.state = "assembles" if v.assembles else "interferes"
         self._paint("ok" if v.assembles else "fail", v.headline,
                     f"Mate {mi + 1} ({m.hole} ← {m.pin}). Worst case: {v.worst_case}.<br>"
-                    f"<span style='font-family:monospace'>{_html(v.formula)}</span>")
+                    f"<span style='font-family:monospace'>{_html_escape(v.formula)}</span>")
 
     def _fastener(self, fid: str) -> None:
         fr = self.model.result.fasteners[fid]
@@ -991,7 +989,7 @@ class VerdictBanner(QFrame):
         self.state = "none"
         self._paint("none", f"FASTENER {fid} ({fr.fastener.kind}): position tolerance "
                             f"⌀{u.fmt(fr.position_tolerance.value)} {u.value}",
-                    f"<span style='font-family:monospace'>{_html(fr.position_tolerance.formula(u, st))}</span>"
+                    f"<span style='font-family:monospace'>{_html_escape(fr.position_tolerance.formula(u, st))}</span>"
                     "<br>No fit to judge here: the tolerance is what the fastener pattern allows.", mark=False)
 
     def _inspection(self, fid: str) -> None:
@@ -1005,19 +1003,19 @@ class VerdictBanner(QFrame):
         v = res.verdict
         rule = ("ISO 14253-1 decision rule, U = " + u.fmt(res.uncertainty) + " (k = 2)"
                 if res.uncertainty is not None else "no uncertainty U given: measured values alone")
-        lines = [f"Measured {_html(res.feature.kind.value)} {_html(fid)}; {rule}."]
+        lines = [f"Measured {_html_escape(res.feature.kind.value)} {_html_escape(fid)}; {rule}."]
         if v is None:  # geom gave no overall verdict: nothing claims one
             self.state = "none"
             self._paint("none", f"INSPECTION of {fid}: NOT EVALUATED", "<br>".join(lines))
             return
-        lines.append("<b>Why:</b> " + _html(v.why))
+        lines.append("<b>Why:</b> " + _html_escape(v.why))
         if res.axis is not None:
-            gov = f"<b>Governing axis reading:</b> {_html(res.axis.basis)}"
+            gov = f"<b>Governing axis reading:</b> {_html_escape(res.axis.basis)}"
             other = other_axis_basis(res)
             if other:
-                gov += f" (the {_html(other)} reading is shown and does not govern)"
+                gov += f" (the {_html_escape(other)} reading is shown and does not govern)"
             lines.append(gov)  # the reason (res.axis_governs) is in the tooltip and the readout table
-        lines += ["<b>Note:</b> " + _html(n) for n in v.notes]
+        lines += ["<b>Note:</b> " + _html_escape(n) for n in v.notes]
         self.state = v.role
         self._paint(v.role, v.headline, "<br>".join(lines))
         tip = res.axis_governs or ""

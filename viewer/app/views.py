@@ -10,6 +10,8 @@ anchor points in place; actors are only re-made when the scene's structure chang
 
 from __future__ import annotations
 
+from html import escape as _html_escape
+
 import time
 from dataclasses import dataclass, replace
 
@@ -474,7 +476,7 @@ class View3D(QWidget):
                 a.SetVisibility(False)
         rows = [(lbl, col) for (lbl, col), layer in zip(shown.legend, shown.legend_layers)
                 if layer in self.visible]
-        text = "  ".join(f"<span style='color:{col}; font-size:14pt'>■</span>&nbsp;{_html(lbl)}"
+        text = "  ".join(f"<span style='color:{col}; font-size:14pt'>■</span>&nbsp;{_html_escape(lbl)}"
                          for lbl, col in rows) if "legend" in self.visible else ""
         if text != self.legend.text():
             self.legend.setText(text)
@@ -698,10 +700,6 @@ class _OnResize(QObject):
         if event.type() == QEvent.Resize:
             QTimer.singleShot(0, self.fn)
         return False
-
-
-def _html(text: str) -> str:
-    return text.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;")
 
 
 def _fit_canvas_class():
