@@ -12,8 +12,8 @@ from matplotlib.patches import Circle, PathPatch
 from shapely.geometry import Polygon
 
 from geom import analyse_scene, load, tolerance_allowed, virtual_condition
-from geom.scenefile import loads
 from geom.boundaries import FeatureState
+from geom.scenefile import loads
 from viewer import figures as F
 from viewer import style as S
 
@@ -36,12 +36,51 @@ def flange():
     return analyse_scene(load(SCENES / "motor_flange_studs.toml"))
 
 
+# Figures read by several tests are built once (tests only read them).
+@pytest.fixture(scope="module")
+def bracket_through(bracket):
+    return F.through_view(bracket, 0)
+
+
+@pytest.fixture(scope="module")
+def bracket_section(bracket):
+    return F.section_view(bracket, 0)
+
+
+@pytest.fixture(scope="module")
+def bracket_bonus(bracket):
+    return F.bonus_chart(bracket, 0)
+
+
+# The sensor bracket scene (scenes/sensor_bracket_interference.toml), as written in the file:
+# hole 6.000-6.012, position 0.030 at MMC, length 8.0; pin 5.980-5.990, perpendicularity
+# 0.010 at MMC, length 8.0. Virtual conditions by ASME Y14.5 VC = MMC -/+ t (from memory):
+HOLE_VC = 6.000 - 0.030  # 5.970
+PIN_VC = 5.990 + 0.010  # 6.000
+
+
 def _by_gid(fig, gid):
     return [a for ax in fig.axes for a in ax.findobj() if a.get_gid() == gid]
 
 
+def _fig_text(fig, gid):
+    """The figure-level text (title, footer of a standalone figure) with this gid."""
+    (t,) = [a for a in fig.texts if a.get_gid() == gid]
+    return t.get_text()
+
+
 def _texts(fig):
     return " ".join(t.get_text() for t in fig.findobj(lambda a: hasattr(a, "get_text")))
+
+
+def _fill_rule_k(spread, r_disp, fill=0.4):
+    """Independent reference for the exaggeration of a 2D view: the largest factor of the
+    drawing series (1, 1.5, 2, 2.5, 3, 4, 5, 6, 8 x 10^n; common practice, no source) with
+    k * spread <= fill * r_disp, the largest deviation drawn filling at most 0.4 of the drawn
+    radius (the rule the 2D views state, viewer.exaggeration.auto_k), found by scanning the
+    written-out series."""
+    series = [m * 10.0**e for e in range(0, 7) for m in (1, 1.5, 2, 2.5, 3, 4, 5, 6, 8)]
+    return max([k for k in series if k * spread <= fill * r_disp] or [1.0])
 
 
 def _chord(d, segments):
@@ -110,20 +149,21 @@ def test_opening_stays_at_virtual_condition_with_bonus(bracket):
     assert d_artist == pytest.approx(5.970, abs=_second_order(6.010, t, 8.0) + _chord(6.010, data.segments))
 
 
-def test_pin_envelope_circle_is_pin_virtual_condition(bracket):
+def test_pin_envelope_circle_is_pin_virtual_condition(bracket_through):
     # ASME Y14.5-2018 (from memory): pin VC = MMC + t = 5.990 + 0.010 = 6.000, plus the same
     # second-order term; the circle is read back from the drawn artist.
-    fig, data = F.through_view(bracket, 0)
+    fig, data = bracket_through
     (circle,) = _by_gid(fig, "pin-envelope")
     d = 2 * float(data.exaggeration.unradial(circle.radius))
     ch = _chord(5.990, data.segments)
-    assert 6.000 - ch <= d <= 6.000 + _second_order(5.990, 0.010, 8.0) + ch
+    assert PIN_VC - ch <= d <= PIN_VC + _second_order(5.990, 0.010, 8.0) + ch
 
 
-def test_interference_is_drawn_in_the_warning_colour(bracket, gearbox):
-    # sensor bracket: 5.970 - 6.000 = -0.030 (tests/test_scenes.py check values); the overlap
-    # region must exist, be red (viewer.style.INTERFERENCE) and its text give the true values.
-    fig, data = F.through_view(bracket, 0)
+def test_interference_is_drawn_in_the_warning_colour(bracket_through, gearbox):
+    # sensor bracket: worst-case clearance = hole VC - pin VC = 5.970 - 6.000 = -0.030 (ASME
+    # Y14.5 VC, from memory; values above); the overlap region must exist, be red
+    # (viewer.style.INTERFERENCE) and its text give the true values.
+    fig, data = bracket_through
     (ov,) = _by_gid(fig, "overlap")
     assert isinstance(ov, PathPatch)
     assert ov.get_facecolor()[:3] == pytest.approx(S.rgb(S.INTERFERENCE), abs=1e-6)
@@ -132,7 +172,7 @@ def test_interference_is_drawn_in_the_warning_colour(bracket, gearbox):
     (txt,) = _by_gid(fig, "gap-text")
     # per side: half of the diametral 0.030 (computed here)
     assert "OVERLAP 0.030" in txt.get_text() and "(0.015 per side)" in txt.get_text()
-    assert data.clearance == pytest.approx(-0.030, abs=1e-9)
+    assert data.clearance == pytest.approx(HOLE_VC - PIN_VC, abs=1e-9)
     # gearbox end cap assembles: no overlap artist, clearance text instead
     fig2, data2 = F.through_view(gearbox, 0)
     assert _by_gid(fig2, "overlap") == []
@@ -141,12 +181,42 @@ def test_interference_is_drawn_in_the_warning_colour(bracket, gearbox):
     assert data2.clearance > 0
 
 
-def test_exaggeration_is_labelled_and_dimensions_are_true(bracket):
-    fig, data = F.through_view(bracket, 0)
+def test_through_view_states_the_fill_rule_exaggeration_and_true_dimensions(bracket_through):
+    # The largest radial deviation drawn, from the geometry (geom.throughview's model, computed
+    # here): the hole's end sections are ellipses with semi-axes d / (2 cos theta) and d / 2,
+    # tan theta = t / L = 0.030 / 8.0, centred t / 2 either side of the basic axis; the far end
+    # of the major axis lies t / 2 + d / (2 cos theta) from it. The polygons' vertices sit on or
+    # outside the curve, by at most the factor 2 / (1 + cos(pi / n)). The other curves deviate
+    # less from r0 = 3.000: the inscribed circle at VC 5.970 by 0.015, the pin's sections by
+    # 0.005 + (3.000 - 2.995) = 0.010, the pin's envelope at VC 6.000 by 0.
+    fig, data = bracket_through
+    d, t, L, r0 = 6.000, 0.030, 8.0, 6.000 / 2
+    a = d / (2 * math.cos(math.atan2(t, L)))
+    lo = t / 2 + a - r0
+    hi = t / 2 + a * 2 / (1 + math.cos(math.pi / data.segments)) - r0
+    assert lo > 0.015  # the section's far point governs (it is beyond the inscribed circle's 0.015)
+    k = _fill_rule_k(lo, r0)
+    assert k == _fill_rule_k(hi, r0) == 60  # 1.200 / 0.01502 = 79.9: the step below 80
+    assert _fig_text(fig, "footer").startswith(f"radial deviations ×{k:g} about ⌀6.000")
     text = _texts(fig)
-    assert f"radial deviations ×{data.exaggeration.k:g}" in text
-    assert data.exaggeration.k > 1
-    assert "⌀5.970" in text and "⌀6.000" in text  # true values, not the drawn ones
+    assert f"⌀{HOLE_VC:.3f}" in text and f"⌀{PIN_VC:.3f}" in text  # true values, not the drawn ones
+
+
+def test_section_view_states_the_fill_rule_exaggeration(bracket_section):
+    # The section's largest radial deviation, by hand: a hole wall lies d / (2 cos theta) from
+    # its axis (horizontal cut of a tilted cylinder) and the axis moves t / 2 either way:
+    # 3.000 / cos(atan(0.030 / 8)) - 3.000 + 0.015 = 0.015021; the pin's wall
+    # |2.995 / cos(atan(0.010 / 8)) - 3.000| + 0.005 = 0.010; the VC lines 0.015 and 0. The
+    # drawn radius is r0 = 3.000 (not shortened: 0.55 L = 4.4 > r0).
+    fig, data = bracket_section
+    r0 = 3.000
+    spread = r0 / math.cos(math.atan2(0.030, 8.0)) - r0 + 0.030 / 2
+    k = _fill_rule_k(spread, r0)
+    assert k == 60
+    assert _fig_text(fig, "footer").startswith(f"radial deviations ×{k:g} about ⌀6.000 — dimension texts are TRUE")
+    # the tilt text says the drawn angle: atan(k t / L), in degrees to one decimal
+    (tilt,) = _by_gid(fig, "bracket-hole-tilt-text")
+    assert f"drawn {math.degrees(math.atan(k * 0.030 / 8.0)):.1f}° (×{k:g})" in tilt.get_text()
 
 
 def test_section_zone_width_is_tolerance_allowed(bracket):
@@ -162,17 +232,17 @@ def test_section_zone_width_is_tolerance_allowed(bracket):
         assert f"⌀{expect:.3f}" in _texts(fig)
 
 
-def test_section_axis_tilt_and_boundaries(bracket):
+def test_section_axis_tilt_and_boundaries(bracket_section):
     # tilt: tan(theta) = t / L (an axis crossing its zone corner to corner, geometry);
     # boundary lines at VC: hole 5.970, pin 6.000 (ASME Y14.5-2018, from memory)
-    fig, data = F.section_view(bracket, 0)
+    fig, data = bracket_section
     ex = data.exaggeration
     (axis,) = _by_gid(fig, "bracket-hole-axis")
     x, z = np.asarray(axis.get_xdata(), float), np.asarray(axis.get_ydata(), float)
     slope = float(ex.unlateral(x[-1] - x[0])) / (z[-1] - z[0])
     assert math.degrees(math.atan(slope)) == pytest.approx(math.degrees(math.atan2(0.030, 8.0)), abs=1e-9)
     assert data.tilt_deg["bracket-hole"] == pytest.approx(math.degrees(math.atan2(0.030, 8.0)))
-    for fid, vc in (("bracket-hole", 5.970), ("locating-pin", 6.000)):
+    for fid, vc in (("bracket-hole", HOLE_VC), ("locating-pin", PIN_VC)):
         xs = sorted({round(float(ln.get_xdata()[0]), 12) for ln in _by_gid(fig, f"{fid}-boundary")})
         assert len(xs) == 2
         assert 2 * float(ex.unradial(xs[1])) == pytest.approx(vc, abs=1e-12)
@@ -183,12 +253,13 @@ def test_section_axis_tilt_and_boundaries(bracket):
     assert _by_gid(fig, "overlap")
 
 
-@pytest.mark.parametrize("fid, t, bonus", [("bracket-hole", 0.030, 0.012), ("locating-pin", 0.010, 0.010)])
-def test_bonus_line_through_mmc_and_lmc(bracket, fid, t, bonus):
+# t and the bonus at LMC = |LMC - MMC| from the scene file: hole 6.012 - 6.000, pin 5.990 - 5.980
+@pytest.mark.parametrize("fid, t, bonus", [("bracket-hole", 0.030, 6.012 - 6.000), ("locating-pin", 0.010, 5.990 - 5.980)])
+def test_bonus_line_through_mmc_and_lmc(bracket, bracket_bonus, fid, t, bonus):
     # ASME Y14.5-2018 (from memory): tolerance allowed = t at MMC, t + |LMC - MMC| at LMC; the
     # VC line (size -/+ allowed) is constant.
     f = bracket.scene.feature(fid)
-    fig, data = F.bonus_chart(bracket, 0)
+    fig, data = bracket_bonus
     (line,) = _by_gid(fig, f"{fid}-allowed")
     x, y = np.asarray(line.get_xdata()), np.asarray(line.get_ydata())
     order = np.argsort(x)
@@ -196,7 +267,8 @@ def test_bonus_line_through_mmc_and_lmc(bracket, fid, t, bonus):
     assert np.interp(f.lmc, x[order], y[order]) == pytest.approx(t + bonus, abs=1e-12)
     (vc_line,) = _by_gid(fig, f"{fid}-mating")
     assert np.ptp(vc_line.get_ydata()) == pytest.approx(0.0, abs=1e-12)
-    assert vc_line.get_ydata()[0] == pytest.approx(virtual_condition(f), abs=1e-12)
+    assert vc_line.get_ydata()[0] == pytest.approx({"bracket-hole": HOLE_VC, "locating-pin": PIN_VC}[fid], abs=1e-12)
+    assert virtual_condition(f) == pytest.approx(vc_line.get_ydata()[0], abs=1e-12)
     (mark,) = _by_gid(fig, f"{fid}-produced")
     assert mark.get_xdata()[0] == pytest.approx(f.mmc) and mark.get_ydata()[0] == pytest.approx(t)
 
@@ -204,6 +276,8 @@ def test_bonus_line_through_mmc_and_lmc(bracket, fid, t, bonus):
 def test_bonus_lmc_and_rfs(flange):
     # ASME Y14.5-2018 / ISO 2692 (from memory): at LMC the bonus grows toward MMC and the LMC
     # virtual size (pin: LMC - t = 39.950 - 0.020 = 39.930) is the constant line; RFS: no bonus.
+    # Scene file: pilot 39.950-39.975 (size tolerance 0.025), position 0.020 at LMC; adaptor
+    # bore perpendicularity 0.015 RFS.
     fig, data = F.bonus_chart(flange, 0)
     pilot = flange.scene.feature("pilot")
     (line,) = _by_gid(fig, "pilot-allowed")
@@ -219,7 +293,8 @@ def test_bonus_lmc_and_rfs(flange):
 
 
 def test_lone_projected_feature_views(flange):
-    # a feature in no mate draws alone; the projected zone (8.000 beyond A) is labelled and the
+    # a feature in no mate draws alone; the projected zone (projected = 8.0 in the scene file,
+    # on the other side of A: -8 <= z <= 0, DEVELOPERS.md datum frame) is labelled and the
     # through-view sections sit at the ends of the projected zone
     fig, data = F.section_view(flange, "stud-hole")
     assert data.placements["stud-hole"].zone_z == (-8.0, 0.0)
@@ -230,6 +305,8 @@ def test_lone_projected_feature_views(flange):
 
 
 def test_every_view_of_every_scene_saves(tmp_path):
+    import xml.etree.ElementTree as ET
+
     for p in sorted(SCENES.glob("*.toml")):
         res = analyse_scene(load(p))
         subjects = list(range(len(res.scene.mates))) + [f.id for f in res.scene.features]
@@ -238,7 +315,12 @@ def test_every_view_of_every_scene_saves(tmp_path):
                 fig, _ = F.draw_view(name, res, sub)
                 out = tmp_path / f"{p.stem}_{sub}_{name}.svg"
                 F.save_figure(fig, out)
-                assert out.stat().st_size > 1000
+                # a well-formed SVG whose texts stay text (svg.fonttype "none"): the figure's
+                # first title line is in it as written
+                root = ET.parse(out).getroot()
+                assert root.tag.endswith("svg")
+                svg_text = "".join(root.itertext())
+                assert _fig_text(fig, "title") in svg_text
 
 
 def test_figures_need_no_gui_backend():

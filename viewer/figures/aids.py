@@ -1,0 +1,240 @@
+"""Drawing aids shared by the 2D views: the matplotlib style (fonts, sizes, colours of the
+opening), new figures and equal-aspect limits, shapely polygons as paths, narrow-width
+dimensions, callout texts spread in a column beside the drawing, the title and the footer, and
+the dimension text of a clearance. Nothing here knows a tolerance rule.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import textwrap
+
+import matplotlib
+import numpy as np
+from matplotlib.figure import Figure
+from matplotlib.path import Path as MplPath
+
+from geom.analysis import line_to_line
+from viewer import style as S
+
+# ------------------------------------------------------------------------------------ style
+
+FONT_FAMILY = ["DejaVu Sans", "STIXGeneral"]  # STIX carries the GD&T symbols DejaVu lacks
+RC_PARAMS = {
+    "font.family": FONT_FAMILY,
+    "font.size": 9.0,
+    "pdf.fonttype": 3,  # text stays text (searchable, extractable) in the PDF; subsets fast
+    "svg.fonttype": "none",
+    "axes.edgecolor": S.TEXT,
+    "axes.labelcolor": S.TEXT,
+    "xtick.color": S.TEXT,
+    "ytick.color": S.TEXT,
+    "text.color": S.TEXT,
+    "hatch.linewidth": 0.6,
+    "savefig.facecolor": S.BACKGROUND,
+    "axes.formatter.useoffset": False,
+}
+FIGSIZE = (8.0, 6.0)  # inches; at DPI this is 1600 x 1200 pixels
+DPI = 200
+HOLE_LINE = S.SURFACE  # hole walls / sections
+OPENING_FILL = "#DCE8F5"  # light tint of SURFACE: the clear opening (luminance ~0.8)
+
+
+@contextlib.contextmanager
+def style_context():
+    """matplotlib settings for building and saving matezone figures (fonts, TrueType in PDF)."""
+    with matplotlib.rc_context(RC_PARAMS):
+        yield
+
+
+# ------------------------------------------------------------------------- figure and axes
+
+
+def _new_figure(fig, rect, figsize):
+    """The axes to draw in: a new figure of our own (``own``) or a slot ``rect`` of ``fig``."""
+    own = fig is None
+    if own:
+        fig = Figure(figsize=figsize, dpi=DPI, facecolor=S.BACKGROUND)
+        rect = rect or (0.03, 0.09, 0.94, 0.80)
+    ax = fig.add_axes(rect)
+    ax.set_facecolor(S.BACKGROUND)
+    return fig, ax, own
+
+
+def _fit_limits(ax, x0, x1, y0, y1, anchor=(0.5, 0.5)):
+    """Set equal-aspect limits covering the box, grown to the axes' own shape (nothing clipped)."""
+    fig = ax.figure
+    pos = ax.get_position(original=True)
+    w_in, h_in = pos.width * fig.get_figwidth(), pos.height * fig.get_figheight()
+    dx, dy = x1 - x0, y1 - y0
+    if dx / dy < w_in / h_in:
+        grow = dy * w_in / h_in - dx
+        x0, x1 = x0 - grow * anchor[0], x1 + grow * (1 - anchor[0])
+    else:
+        grow = dx * h_in / w_in - dy
+        y0, y1 = y0 - grow * anchor[1], y1 + grow * (1 - anchor[1])
+    ax.set_xlim(x0, x1)
+    ax.set_ylim(y0, y1)
+
+
+def _box_ratio(ax) -> float:
+    """Width over height of the axes on the page."""
+    pos = ax.get_position(original=True)
+    return (pos.width * ax.figure.get_figwidth()) / (pos.height * ax.figure.get_figheight())
+
+
+def _clean_axes(ax):
+    """A drawing, not a plot: equal aspect, no frame, no ticks."""
+    ax.set_aspect("equal", adjustable="box")
+    for sp in ax.spines.values():
+        sp.set_visible(False)
+    ax.set_xticks([])
+    ax.set_yticks([])
+
+
+def _poly_path(geom) -> MplPath | None:
+    """matplotlib Path of a shapely (Multi)Polygon, holes included."""
+    polys = getattr(geom, "geoms", [geom])
+    verts, codes = [], []
+    for p in polys:
+        if p.is_empty or p.geom_type != "Polygon":
+            continue
+        for ring in (p.exterior, *p.interiors):
+            xy = np.asarray(ring.coords)
+            verts.append(xy)
+            codes.append(np.r_[MplPath.MOVETO, np.full(len(xy) - 2, MplPath.LINETO), MplPath.CLOSEPOLY])
+    if not verts:
+        return None
+    return MplPath(np.vstack(verts), np.concatenate(codes))
+
+
+def _narrow_dim(ax, x0, x1, y, color, lw=0.9, gid=None):
+    """Dimension of a narrow width: arrows outside pointing in at the extension lines."""
+    a = max(abs(x1 - x0) * 0.9, 1e-12)
+    for xa, xb in ((x0 - a, x0), (x1 + a, x1)):
+        ax.annotate("", xy=(xb, y), xytext=(xa, y), arrowprops=dict(arrowstyle="-|>", color=color, lw=lw, shrinkA=0,
+                                                                    shrinkB=0, mutation_scale=7), gid=gid)
+    ax.plot([x0, x1], [y, y], color=color, lw=lw)
+    return x1 + a
+
+
+# ------------------------------------------------------------------------------ texts placed
+
+
+def _spread_y(targets: list[float], lo: float, hi: float, min_gap: float) -> list[float]:
+    """Text heights near the targets, in their order, at least ``min_gap`` apart, inside
+    [lo, hi] when they fit (else running above ``hi``).
+
+    >>> _spread_y([0.5, 0.5, 0.125], 0.0, 1.0, 0.25)  # the second 0.5 moves up
+    [0.5, 0.75, 0.125]
+    >>> _spread_y([0.875, 1.0], 0.0, 1.0, 0.25)  # no room above: the lower one moves down
+    [0.75, 1.0]
+    """
+    if not targets:
+        return []
+    order = np.argsort(targets)
+    ys = [min(max(float(t), lo), hi) for t in np.asarray(targets, dtype=float)[order]]
+    for i in range(1, len(ys)):
+        ys[i] = max(ys[i], ys[i - 1] + min_gap)
+    for i in range(len(ys) - 1, -1, -1):
+        cap = hi if i == len(ys) - 1 else ys[i + 1] - min_gap
+        ys[i] = min(ys[i], cap)
+    if ys[0] < lo:
+        ys[0] = lo
+        for i in range(1, len(ys)):
+            ys[i] = max(ys[i], ys[i - 1] + min_gap)
+    out = [0.0] * len(ys)
+    for j, i in enumerate(order):
+        out[i] = ys[j]
+    return out
+
+
+def _legend_top(ax, leg) -> float:
+    """Top of a legend in axes fraction (the legend is measured with a renderer)."""
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+
+    fig = ax.figure
+    canvas = fig.canvas if isinstance(fig.canvas, FigureCanvasAgg) else FigureCanvasAgg(fig)
+    bb = leg.get_window_extent(canvas.get_renderer())
+    return float(ax.transAxes.inverted().transform((bb.x1, bb.y1))[1])
+
+
+def _column(ax, calls, xfrac, lo, hi, fs, ha="left", gap=None):
+    """Callout texts in a column at axes fraction ``xfrac``, near their targets' heights.
+
+    ``calls``: (target xy in data, text, colour, emphasised, gid); an emphasised text in the
+    interference colour is boxed."""
+    if not calls:
+        return
+    to_frac = ax.transLimits  # data -> axes fraction (limits already set to the box's shape)
+    targets = [float(to_frac.transform(c[0])[1]) for c in calls]
+    lines = max(t[1].count("\n") + 1 for t in calls)
+    pos = ax.get_position(original=True)
+    h_pt = pos.height * ax.figure.get_figheight() * 72.0
+    gap = gap or (lines * fs * 1.25 + 6.0) / h_pt
+    ys = _spread_y(targets, lo, hi, gap)
+    for (xy, txt, col, strong, gid), y in zip(calls, ys):
+        boxed = strong and col == S.INTERFERENCE
+        ax.annotate(
+            txt, xy=xy, xycoords="data", xytext=(xfrac, y), textcoords="axes fraction", fontsize=fs,
+            color=col, weight="bold" if strong else "normal", ha=ha, va="center", gid=gid, zorder=12,
+            arrowprops=dict(arrowstyle="-|>", color=col, lw=0.7, shrinkA=2, shrinkB=1, mutation_scale=7),
+            bbox=(dict(boxstyle="round,pad=0.3", fc=S.BACKGROUND, ec=col, lw=1.3) if boxed else
+                  dict(boxstyle="round,pad=0.12", fc=S.BACKGROUND, ec="none", alpha=0.9)),
+        )
+
+
+def _footer(fig, ax, own, text_lines, fs):
+    """Exaggeration / assumption lines under the drawing."""
+    if own:
+        fig.text(0.03, 0.025, "\n".join(text_lines), fontsize=fs * 0.85, color=S.TEXT, va="bottom", ha="left",
+                 gid="footer")
+    else:
+        w_pt = ax.get_position(original=True).width * fig.get_figwidth() * 72.0
+        chars = max(30, int(w_pt / (fs * 0.85 * 0.52)))
+        lines = [w for ln in text_lines for w in textwrap.wrap(ln, chars)]
+        ax.text(0.0, -0.01, "\n".join(lines), transform=ax.transAxes, fontsize=fs * 0.85, va="top",
+                ha="left", color=S.TEXT, gid="footer")
+
+
+def _title(fig, ax, own, text, fs):
+    """Standalone: bold first line, the subject below it. On a report page: the first line only."""
+    head, _, rest = text.partition("\n")
+    if own:
+        fig.text(0.03, 0.975, head, fontsize=fs * 1.3, weight="bold", va="top", ha="left", gid="title")
+        if rest:
+            fig.text(0.03, 0.935, rest, fontsize=fs * 1.05, va="top", ha="left", gid="subtitle")
+    else:
+        ax.set_title(head, fontsize=fs * 1.05, weight="bold", loc="left", pad=2)
+
+
+# ---------------------------------------------------------------------- clearance texts
+
+
+def _half(units, clearance: float) -> str:
+    """The per-side (half) value of a diametral clearance as it is shown, with the digits it
+    needs (``Units.fmt`` extends them: half of 0.025 prints 0.0125), so that twice it reads as
+    the diametral value.
+
+    >>> from geom.model import Units
+    >>> _half(Units.MM, 0.025), _half(Units.MM, -0.030)
+    ('0.0125', '0.015')
+    """
+    return units.fmt(abs(float(units.fmt(clearance))) / 2.0)
+
+
+def _gap_text(u, clearance: float, interferes: bool, consequence: str, line_to_line_text: str) -> str:
+    """The dimension text of a diametral clearance or overlap (true value, and per side).
+
+    >>> from geom.model import Units
+    >>> print(_gap_text(Units.MM, -0.030, True, "no fit", "l-t-l"))
+    OVERLAP 0.030 on ⌀
+    (0.015 per side):
+    no fit
+    """
+    per, dia = _half(u, clearance), u.fmt(abs(clearance))
+    if interferes:
+        return f"OVERLAP {dia} on ⌀\n({per} per side):\n{consequence}"
+    if line_to_line(clearance):
+        return line_to_line_text
+    return f"clearance {dia} on ⌀\n({per} per side)"
