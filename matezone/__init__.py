@@ -1,0 +1,1 @@
+"""matezone's command line (``matezone``, ``python -m matezone``): see :mod:`matezone.cli`."""

@@ -16,13 +16,22 @@ from pathlib import Path
 EXIT_BAD_INPUT = 2
 
 
-def repo_root() -> Path:
-    return Path(__file__).resolve().parent.parent
+DEMO_SCENE = "gearbox_endcap_dowel.toml"
+
+
+def bundled_scenes() -> Path:
+    """The folder of the demo scenes shipped with matezone: the package ``matezone.scenes``,
+    which is the top-level ``scenes/`` folder of a source checkout (mapped in pyproject.toml) and
+    ``matezone/scenes/`` in an installed wheel. Found through the import system, so it works from
+    either."""
+    from importlib.resources import files
+
+    return Path(str(files("matezone.scenes")))
 
 
 def demo_scene() -> Path:
     """The bundled demo scene (opened by ``matezone`` with no arguments)."""
-    return repo_root() / "scenes" / "gearbox_endcap_dowel.toml"
+    return bundled_scenes() / DEMO_SCENE
 
 
 class UserError(Exception):

@@ -121,6 +121,7 @@ def test_tilt_angle():
     # Geometry: an axis crossing a zone of diameter t over length L tilts by atan(t / L).
     h = feat("hole", 10.0, 10.015, 0.02, "MMC", length=15.0)
     r = analyse_feature(h)
+    # the largest zone is t + bonus at LMC = 0.02 + (10.015 - 10.000) = 0.035 (ASME Y14.5 bonus, from memory)
     assert r.tilt_max_deg == pytest.approx(math.degrees(math.atan(0.035 / 15.0)))
 
 

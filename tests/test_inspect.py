@@ -9,6 +9,7 @@ testing does.
 
 from __future__ import annotations
 
+import functools
 import itertools
 import math
 
@@ -148,11 +149,21 @@ def test_exact_straight_cylinder_offset_from_true_position():
     assert r.least_squares.size == pytest.approx(8.0, abs=EXACT)
 
 
+TILTED = (4.0, 12.0, 0.02)  # R, L, t: an exact cylinder whose axis moves t between z = 0 and z = L
+
+
+@functools.cache
+def _tilted_inspection():
+    """The exact tilted cylinder inspected once for the tests that read it (rings of 360 points:
+    exact data needs the ellipse vertices, phi = 0 and 180 degrees, sampled, not a dense ring)."""
+    R, L, t = TILTED
+    return inspect_feature(scene_with(), "f", points=cylinder_points(R, L, nsec=13, per=360, tilt=(t / L, 0.0)))
+
+
 def test_exact_tilted_cylinder_perpendicularity_and_related_envelope():
     # ISO 10360-6 method: exact tilted cylinder, offset t = 0.02 between z = 0 and z = L
-    R, L, t = 4.0, 12.0, 0.02
-    P = cylinder_points(R, L, nsec=13, per=720, tilt=(t / L, 0.0))
-    r = inspect_feature(scene_with(), "f", points=P)
+    R, L, t = TILTED
+    r = _tilted_inspection()
     th = math.atan(t / L)
     assert r.unrelated_ame == pytest.approx(2 * R, abs=EXACT)  # the cylinder itself
     assert r.unrelated.tilt_deg == pytest.approx(math.degrees(th), abs=1e-9)
@@ -389,11 +400,16 @@ _BASE = cylinder_points(4.002, 12.0, nsec=6, per=120, tilt=(0.0006, -0.0003), lo
                         noise=3e-4, seed=3)
 
 
+@functools.cache
+def _base_inspection():
+    return inspect_feature(scene_with(char=Characteristic.POSITION), "f", points=_BASE)
+
+
 @settings(max_examples=12, deadline=None)
 @given(angle=st.floats(0, 2 * math.pi), dx=st.floats(-50, 50), dy=st.floats(-50, 50))
 def test_sizes_invariant_under_rotation_about_z_and_translation(angle, dx, dy):
     # invariance (common practice, no source): sizes of a rigidly moved part do not change
-    base = inspect_feature(scene_with(char=Characteristic.POSITION), "f", points=_BASE)
+    base = _base_inspection()
     c, s = math.cos(angle), math.sin(angle)
     Q = _BASE.copy()
     Q[:, 0], Q[:, 1] = c * _BASE[:, 0] - s * _BASE[:, 1] + dx, s * _BASE[:, 0] + c * _BASE[:, 1] + dy
@@ -423,8 +439,8 @@ def test_feature_axis_reading_of_an_exact_tilted_cylinder():
     # ISO 10360-6 method (exact data): a straight tilted cylinder's own axis moves t over L, so the
     # reading on the axis of the unrelated envelope (ASME "feature axis", Y14.5-2009 §1.3, from
     # memory) equals the derived-median-line reading, t.
-    R, L, t = 4.0, 12.0, 0.02
-    r = inspect_feature(scene_with(), "f", points=cylinder_points(R, L, nsec=13, per=720, tilt=(t / L, 0.0)))
+    t = TILTED[2]
+    r = _tilted_inspection()
     assert r.feature_axis.deviation == pytest.approx(t, abs=1e-9)
     assert inspection_to_json(r)["feature_axis_deviation"] == pytest.approx(t, abs=1e-9)
 

@@ -15,22 +15,13 @@ from geom.inspect import inspect_feature
 from geom.readout import CAUTION
 from geom.scenefile import load
 from matezone.cli import main
+from scenetext import measured_bore
 
 ROOT = Path(__file__).resolve().parent.parent
 DEMO = ROOT / "scenes" / "cap_bore_inspection.toml"
+DEMO_SECTIONS = 24  # scripts/make_demo_points.py (SECTIONS): the demo scan was generated as 24 rings
 
-SCENE = """units = "mm"
-[[feature]]
-id = "bore"
-kind = "hole"
-limits = [8.000, 8.022]
-length = 12
-[feature.tolerance]
-characteristic = "perpendicularity"
-value = 0.015
-material = "MMC"
-datums = ["A"]
-"""
+SCENE = measured_bore()  # tests/scenetext.py: bore 8.000 - 8.022, perpendicularity 0.015 (M) to A
 
 
 def ring_csv(path: Path, R=4.003, zs=(0.5, 6.0, 11.5), n=60, centre=(0.0, 0.0), scale=1.0, section=False):
@@ -45,10 +36,8 @@ def ring_csv(path: Path, R=4.003, zs=(0.5, 6.0, 11.5), n=60, centre=(0.0, 0.0), 
 
 
 @pytest.fixture
-def scene(tmp_path):
-    p = tmp_path / "part.toml"
-    p.write_text(SCENE)
-    return p
+def scene(write_scene):
+    return write_scene(SCENE, "part.toml")
 
 
 def run(capsys, *argv):
@@ -66,7 +55,7 @@ def test_demo_scene_tells_its_story():
     # axis, from memory) and it conforms, as does the surface (gauge) reading
     sc = load(DEMO)
     r = inspect_feature(sc, "cap-bore")
-    assert r.source == "points" and len(r.sections) == 24
+    assert r.source == "points" and len(r.sections) == DEMO_SECTIONS
     assert r.size_conforms is True
     assert r.axis.basis == "feature axis"
     assert r.axis_conforms is True and r.axis_check.outcome is Outcome.CONFORMS
@@ -78,7 +67,7 @@ def test_demo_scene_tells_its_story():
     assert r.surface_check.values[0] - 7.985 > 0.001  # clears VC = MMC - t by more than U
     assert r.surface_conforms is True and r.surface_check.outcome is Outcome.CONFORMS
     assert r.least_squares.axis_conforms is True  # the least-squares printout passes it
-    assert r.median_line.shape == (24, 3) and r.radial_deviation.shape == (len(r.points),)
+    assert r.median_line.shape == (DEMO_SECTIONS, 3) and r.radial_deviation.shape == (len(r.points),)
     assert dict(sc.report)["report_number"]
 
 
@@ -115,7 +104,7 @@ def test_cli_json_output(capsys):
     # tolerance allowed = t + (AME - MMC) (ASME Y14.5-2018 §1.3, from memory) recomputed from the JSON
     assert d["tolerance_allowed"] == pytest.approx(0.015 + d["unrelated_ame"] - 8.0, abs=1e-9)
     assert d["decisions"]["axis"]["outcome"] == "conformance proven"
-    assert len(d["sections"]) == 24 and d["caution"] == CAUTION
+    assert len(d["sections"]) == DEMO_SECTIONS and d["caution"] == CAUTION
 
 
 def test_cli_points_option_and_values(tmp_path, capsys, scene):
@@ -124,8 +113,9 @@ def test_cli_points_option_and_values(tmp_path, capsys, scene):
     assert code == 0
     # exact rings R = 4.003 written to 6 decimals (rounding +-5e-7 per coordinate)
     assert json.loads(out)["unrelated_ame"] == pytest.approx(8.006, abs=2e-6)
-    scene.write_text(SCENE + "[feature.measured]\nsize = 8.004\nrelated_size = 7.99\naxis_deviation = 0.01\n")
+    scene.write_text(measured_bore(measured={"size": 8.004, "related_size": 7.99, "axis_deviation": 0.01}))
     code, out, _ = run(capsys, scene, "--feature", "bore")
+    # bonus = typed envelope size - MMC = 8.004 - 8.000 (ASME Y14.5 bonus at MMC, from memory)
     assert code == 0 and "values typed" in out and "tolerance allowed = t + bonus = 0.015 + 0.004 = 0.019" in out
 
 

@@ -54,6 +54,7 @@ def test_lmc_hole_mate_uses_resultant_condition():
     h = hole(10.0, 10.1, 0.05, "LMC")
     m = analyse_mate(analyse_feature(h), analyse_feature(pin(9.7, 9.8, 0.02)))
     assert m.hole_boundary.value == pytest.approx(10.0 - 0.05 - 0.1)
+    # against the pin's VC = MMC + t = 9.8 + 0.02 = 9.82 (ASME Y14.5-2018, from memory)
     assert m.clearance_min == pytest.approx(9.85 - 9.82)
 
 
@@ -64,7 +65,8 @@ def test_what_if_clearance_at_mmc_equals_worst_case():
     # worst case (VC constant: ASME Y14.5-2018, from memory).
     for dh, dp in [(8.0, 7.975), (8.015, 7.965), (8.007, 7.97)]:
         assert clearance_at(h, p, FeatureState(dh), FeatureState(dp)) == pytest.approx(m.clearance_min)
-    # Using none of the tolerance gives the size-only clearance at those sizes.
+    # Using none of the tolerance gives the size-only clearance at those sizes: 8.000 - 7.975
+    # (ISO 286-1 clearance = hole size - shaft size, from memory).
     assert clearance_at(h, p, FeatureState(8.0, 0.0), FeatureState(7.975, 0.0)) == pytest.approx(0.025)
 
 

@@ -7,35 +7,15 @@ from pathlib import Path
 
 import pytest
 
-from geom import loads, dumps, load, save
+from geom import dumps, load, loads, save
 from geom.scenefile import SceneError
 from matezone.cli import main
+from scenetext import bore_and_dowel
 
 ROOT = Path(__file__).resolve().parent.parent
 SCENES = sorted((ROOT / "scenes").glob("*.toml"))
 
-GOOD = """
-title = "t"
-units = "mm"
-[[feature]]
-id = "bore"
-kind = "hole"
-limits = [10.0, 10.015]
-length = 15.0
-[feature.tolerance]
-characteristic = "perpendicularity"
-value = 0.02
-material = "MMC"
-datums = ["A"]
-[[feature]]
-id = "dowel"
-kind = "pin"
-limits = [9.98, 9.99]
-length = 15.0
-[[mate]]
-hole = "bore"
-pin = "dowel"
-"""
+GOOD = bore_and_dowel()  # tests/scenetext.py: bore 10.000 - 10.015 with a 9.98 - 9.99 dowel
 
 
 def edit(old, new):
@@ -153,13 +133,14 @@ def test_json_output(capsys, tmp_path):
     assert dowel["virtual_condition"] is None and dowel["outer_boundary"] == 9.99  # Rule #1 envelope
     (m,) = out["mates"]
     assert m["clearance_min"] == pytest.approx(9.98 - 9.99) and m["assembles"] is False
-    assert m["clearance_max"] == pytest.approx(10.015 - 9.98)
+    assert m["clearance_max"] == pytest.approx(10.015 - 9.98)  # hole LMC - pin LMC (ISO 286-1, from memory)
     assert "caution" in out
 
 
 MORE_BAD = [
     # (scene text, field path fragment, message fragment) — found by an independent review
     (edit("length = 15.0", "length = 1" + "0" * 400), "length", "integer with 401 digits"),
+    # VC = MMC - t = 10.0 - 10.5 = -0.5 (ASME Y14.5-2018, from memory): no hole has a negative boundary
     (edit("value = 0.02", "value = 10.5"), "tolerance.value", "smallest worst-case boundary is -0.5"),
     (edit('datums = ["A"]', 'datums = ["B"]'), "datums", "expected datum A first"),
     (edit("length = 15.0", "length = 2026-12-02"), "length", "quote it"),

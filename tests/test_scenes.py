@@ -43,7 +43,8 @@ def test_interference_demo_numbers():
 def test_inch_demo_text_uses_four_decimals():
     res = analyse_scene(load(ROOT / "scenes" / "valve_body_guide_pin.toml"))
     text = render_text(res)
-    # ASME Y14.5-2018 (from memory): VC = MMC - t = .3125 - .0050 = .3075
+    # ASME Y14.5-2018 (from memory): VC = MMC - t = .3125 - .0050 = .3075; the pin's
+    # VC = MMC + t = .3050 + .0020 = .3070, so the worst case leaves .3075 - .3070 = .0005
     assert "VC = MMC - t = 0.3125 - 0.0050 = 0.3075" in text
     assert "ASSEMBLES in the worst case with 0.0005 in clearance" in text
 

@@ -19,11 +19,22 @@ from geom.boundaries import worst_case_boundaries
 from geom.conformance import Outcome, combine, decide, not_evaluated, part_verdict, verdict_word
 from geom.inspect import InspectError, inspect_feature, inspection_to_json, render_inspection
 from geom.model import (
-    Characteristic, Feature, Kind, Material, Measured, Scene, Standard, Tolerance, Units, Zone, datum_problem,
+    Characteristic,
+    Feature,
+    Kind,
+    Material,
+    Measured,
+    Scene,
+    Standard,
+    Tolerance,
+    Units,
+    Zone,
+    datum_problem,
 )
 from geom.readout import feature_rows, render_text
 from geom.scenefile import SceneError
 from matezone.cli import main
+from scenetext import fastener, hole, scene_toml, tol
 
 # ---------------------------------------------------------------- point generators
 
@@ -228,26 +239,17 @@ def test_asme_rfs_straightness_boundaries():
 # ---------------------------------------------------------------- 5. location needs locating datums
 
 
-POS_A_ONLY = '''
-units = "mm"
-[[feature]]
-id = "h"
-kind = "hole"
-limits = [8.0, 8.02]
-length = 10
-[feature.tolerance]
-characteristic = "position"
-value = 0.05
-material = "MMC"
-datums = ["A"]
-'''
+def position_hole(datums) -> str:
+    return scene_toml(hole("h", (8.0, 8.02), 10, tolerance=tol("position", 0.05, datums=datums)))
 
 
-def test_position_to_a_alone_is_refused_everywhere(tmp_path, capsys):
+POS_A_ONLY = position_hole(("A",))
+
+
+def test_position_to_a_alone_is_refused_everywhere(write_scene, capsys):
     # ASME Y14.5 / ISO 5459 datum reference frames (common practice): a plane datum removes one
     # translation and two rotations, so it cannot locate an axis in x and y
-    f = tmp_path / "s.toml"
-    f.write_text(POS_A_ONLY)
+    f = write_scene(POS_A_ONLY)
     for cmd in (["analyze", str(f)], ["inspect", str(f), "--feature", "h"]):
         assert main(cmd) == 2
         err = capsys.readouterr().err
@@ -259,7 +261,7 @@ def test_position_to_a_alone_is_refused_everywhere(tmp_path, capsys):
     with pytest.raises(InspectError, match="unlocated"):
         inspect_feature(sc, "h")
     # with locating datums it loads
-    assert loads(POS_A_ONLY.replace('["A"]', '["A", "B", "C"]')).features[0].tolerance.datums == ("A", "B", "C")
+    assert loads(position_hole(("A", "B", "C"))).features[0].tolerance.datums == ("A", "B", "C")
 
 
 @pytest.mark.parametrize("tol", [
@@ -338,6 +340,7 @@ def test_inch_micro_limits_are_never_shown_equal():
     sc = Scene("t", Units.IN, Standard.ASME, (f,))
     text = render_text(analyse_scene(sc))
     assert "0.25015" in text and "0.2502" not in text
+    # the display rule of DEVELOPERS.md (mm 3 decimals, in 4, more where fewer would hide the value)
     assert Units.IN.fmt(0.00015) == "0.00015"
     assert Units.MM.fmt_cmp(0.0183, 0.018) == ("0.0183", "0.0180")
     # a reading that would print as 0.000 keeps its digits
@@ -392,15 +395,14 @@ def test_projected_hole_table_names_where_its_boundaries_apply():
 # ---------------------------------------------------------------- 11. fastener-only scenes
 
 
-def test_fastener_only_scene_is_valid(tmp_path, capsys):
+def test_fastener_only_scene_is_valid(write_scene, capsys):
     # floating fastener T = H - F (ASME Y14.5 fastener formulas, from memory): 6.6 - 6.0 = 0.6
-    f = tmp_path / "bolts.toml"
-    f.write_text('units = "mm"\n[[fastener]]\nid = "m6"\nkind = "floating"\nfastener = 6.0\nhole = 6.6\n')
+    f = write_scene(scene_toml(fasteners=[fastener("m6", "floating", 6.0, 6.6)]), "bolts.toml")
     assert main(["analyze", str(f)]) == 0
     out = capsys.readouterr().out
     assert "T = H - F = 6.600 - 6.000 = 0.600" in out
     with pytest.raises(SceneError, match=r"\[\[feature\]\] or \[\[fastener\]\]"):
-        loads('units = "mm"\n')
+        loads(scene_toml())  # units and nothing else
 
 
 # ---------------------------------------------------------------- 12. ISO opposite-side boundaries
