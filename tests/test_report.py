@@ -37,10 +37,25 @@ def _squash(s):
 
 
 @pytest.fixture(scope="module")
-def bracket_report(tmp_path_factory):
-    out = tmp_path_factory.mktemp("rep")
-    code, stdout, stderr = _run("report", str(BRACKET), "--out", str(out))
-    assert code == 0, stderr
+def demo_report(tmp_path_factory):
+    """``matezone report SCENE --out DIR`` for a demo scene, run once per scene in this module:
+    returns (folder, stdout, the PDF's page texts)."""
+    done = {}
+
+    def build(scene):
+        if scene not in done:
+            out = tmp_path_factory.mktemp(scene.stem)
+            code, stdout, stderr = _run("report", str(scene), "--out", str(out))
+            assert code == 0, stderr
+            done[scene] = out, stdout, [p.extract_text() for p in PdfReader(str(out / "report.pdf")).pages]
+        return done[scene]
+
+    return build
+
+
+@pytest.fixture(scope="module")
+def bracket_report(demo_report):
+    out, stdout, _ = demo_report(BRACKET)
     return out, stdout
 
 
@@ -76,15 +91,21 @@ def test_results_json_equals_analyze_json(bracket_report):
     assert code == 0 and json.loads(stdout) == got
 
 
-def test_pdf_carries_the_computed_numbers(bracket_report):
-    out, _ = bracket_report
+def test_pdf_carries_the_computed_numbers(demo_report):
+    out, _, pages = demo_report(BRACKET)
     reader = PdfReader(str(out / "report.pdf"))
     assert len(reader.pages) == 1  # one mate, no lone feature
-    text = _pdf_text(out / "report.pdf")
+    text = "\n".join(pages)
     # check values: hole VC 6.000 - 0.030 = 5.970, pin VC 5.990 + 0.010 = 6.000, clearance
     # -0.030 (ASME Y14.5-2018 from memory; tests/test_scenes.py), sizes-alone +0.010
-    for s in ("5.970", "6.000", "-0.030", "+0.010", "6.054", "0.012", "INTERFERES by 0.030 mm",
+    for s in ("5.970", "6.000", "-0.030", "+0.010", "INTERFERES by 0.030 mm",
               "VC = MMC - t = 6.000 - 0.030 = 5.970"):
+        assert s in text, s
+    # the hole's largest bonus |LMC - MMC| = 6.012 - 6.000 = 0.012 and its resultant condition
+    # RC = LMC + t + bonus = 6.012 + 0.030 + 0.012 = 6.054 (ASME Y14.5-2018, from memory), from
+    # the scene's limits [6.000, 6.012] and position 0.030 at MMC, computed here
+    lmc, mmc, t = 6.012, 6.000, 0.030
+    for s in (f"{lmc - mmc:.3f}", f"{lmc + t + (lmc - mmc):.3f}"):
         assert s in text, s
     # the title block from the scene's [report] table
     for s in ("NCR-2026-0117", "SB-3-002", "L26-1187", "R. Ferreira", "2026-12-02", "D3"):
@@ -134,22 +155,19 @@ def test_bad_scene_exits_2(tmp_path):
 
 
 @pytest.mark.parametrize("scene", SCENES, ids=[s.name for s in SCENES])
-def test_every_demo_scene_produces_its_report(scene, tmp_path):
-    code, stdout, err = _run("report", str(scene), "--out", str(tmp_path))
-    assert code == 0, err
+def test_every_demo_scene_produces_its_report(scene, demo_report):
+    out, _, pages = demo_report(scene)
     sc = load(scene)
     mated = {m.hole for m in sc.mates} | {m.pin for m in sc.mates}
     fit_pages = len(sc.mates) + len([f for f in sc.features if f.id not in mated])
     measured = [f for f in sc.features if f.measured is not None]
     fastener_pages = -(-len(sc.fasteners) // FASTENERS_PER_PAGE)
-    pages = len(measured) + fit_pages + fastener_pages
-    assert len(PdfReader(str(tmp_path / "report.pdf")).pages) == pages
-    assert len(list(tmp_path.glob("*_3d_iso.png"))) == fit_pages + len(measured)
-    assert len(list(tmp_path.glob("inspection_*_3d_section.png"))) == len(measured)
-    assert len(list(tmp_path.glob("*.svg"))) == 3 * fit_pages + len(sc.fasteners)
-    data = json.loads((tmp_path / "results.json").read_text(encoding="utf-8"))
+    assert len(pages) == len(measured) + fit_pages + fastener_pages
+    assert len(list(out.glob("*_3d_iso.png"))) == fit_pages + len(measured)
+    assert len(list(out.glob("inspection_*_3d_section.png"))) == len(measured)
+    assert len(list(out.glob("*.svg"))) == 3 * fit_pages + len(sc.fasteners)
+    data = json.loads((out / "results.json").read_text(encoding="utf-8"))
     assert sorted(data["inspections"]) == sorted(f.id for f in measured)
-    pages = [p.extract_text() for p in PdfReader(str(tmp_path / "report.pdf")).pages]
     raw = "\n".join(pages)
     text = _squash(raw)
     assert _squash(CAUTION) in text
@@ -190,7 +208,7 @@ def test_projected_hole_rows_name_the_projected_height():
     assert sc.units.fmt(bore.mmc - t * L / P) in text  # 9.975, computed above
 
 
-def test_free_text_is_never_math_markup(tmp_path):
+def test_free_text_is_never_math_markup():
     # a part name with "$" pairs (e.g. a price note) must print literally (common practice, no source)
     import matplotlib
     from matplotlib.figure import Figure
@@ -201,3 +219,48 @@ def test_free_text_is_never_math_markup(tmp_path):
     fig = Figure()
     t = fig.text(0.1, 0.5, "bore $x$ face")
     assert t.get_parse_math() is False
+
+
+_TYPED_PIN = """title = "typed pin"
+units = "mm"
+[[feature]]
+id = "p"
+kind = "pin"
+limits = [5.98, 5.99]
+length = 8
+[feature.tolerance]
+characteristic = "perpendicularity"
+value = 0.010
+material = "MMC"
+datums = ["A"]
+[feature.measured]
+size = 5.986
+axis_deviation = 0.004
+"""
+
+
+def test_every_page_starts_and_ends_the_same_way():
+    # the fit, inspection and fastener pages share one start (header, title block) and one foot:
+    # exactly one caution, the same text at the same place (every exported page carries the
+    # caution: DEVELOPERS.md house rules; common practice, no source). Invented typed values.
+    from geom.scenefile import loads
+    from viewer.report import build_fastener_page, build_inspection_page, scene_inspections
+
+    sc = load(ROOT / "scenes" / "example_annotated.toml")
+    res = analyse_scene(sc)
+    assert res.fasteners  # the scene has fasteners, so it has a fastener page
+    item = report_items(res)[0]
+    typed = loads(_TYPED_PIN)
+    figs = [build_page(res, item, item_states(res, item, None), None, 1, 3),
+            build_fastener_page(res, list(res.fasteners)[:1], 3, 3),
+            build_inspection_page(analyse_scene(typed), scene_inspections(typed)["p"], (), 2, 3)]
+    footers = []
+    for no, fig in zip((1, 3, 2), figs):
+        texts = [t.get_text() for t in fig.texts]
+        for label in ("REPORT NUMBER", "PART NUMBER", "REMARKS", f"page {no} of 3"):
+            assert label in texts, label
+        caution = [t for t in fig.texts if t.get_gid() == "caution"]
+        assert len(caution) == 1
+        assert _squash(caution[0].get_text()) == _squash("CAUTION: " + CAUTION)
+        footers.append(caution[0].get_position())
+    assert footers[0] == footers[1] == footers[2]

@@ -1,0 +1,181 @@
+"""Writing a report folder (:func:`write_report`, called by ``matezone report`` and the window
+through :func:`viewer.reportdir.write_report_atomic`): per item the 3D picture and the 2D views
+as PNG, SVG and PDF, per inspected feature its 3D pictures, per fastener its schematic, then
+``report.pdf`` (inspection pages, fit pages, fastener pages) and ``results.json``. Also the
+off-screen renders the pages show (:func:`page_image_3d`, :func:`inspection_images`).
+
+>>> VECTOR_FORMATS
+('svg', 'pdf')
+"""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+from typing import Callable
+
+import numpy as np
+from matplotlib.backends.backend_pdf import PdfPages
+
+from geom.analysis import SceneResult, result_to_json
+from geom.readout import CAUTION
+from geom.textfile import file_slug
+from viewer import figures as F
+
+from .fastener import FASTENERS_PER_PAGE, build_fastener_page, fastener_figure
+from .fit import VIEW_FILES, build_page, item_states, report_items
+from .inspection import build_inspection_page
+from .page import crop_to_content
+from .readings import scene_inspections
+
+VECTOR_FORMATS = ("svg", "pdf")
+RENDER_SIZE = (1600, 1200)  # pixels of every 3D picture
+INSPECTION_VIEW_NAMES = {"iso": "3D view", "top": "view from above, along the axis",
+                         "section": "section in the plane of the tilt"}
+
+Progress = Callable[[str], None]
+
+
+# ------------------------------------------------------------------------------------ 3D images
+
+
+def _page_layers() -> set[str]:
+    """Layers drawn on the page's 3D picture: all but the text overlays (the page prints them)."""
+    from viewer import scene3d
+
+    return set(scene3d.LAYERS) - set(scene3d.HIDDEN_BY_DEFAULT) - {"readouts", "legend"}
+
+
+def _bare_render(scene3d_obj, view: str) -> np.ndarray:
+    from viewer import scene3d
+
+    return scene3d.render_image(scene3d_obj, None, view=view, size=RENDER_SIZE, visible=_page_layers())
+
+
+def page_image_3d(scene3d_obj, view: str) -> np.ndarray:
+    """The 3D picture for the page: the model and its 3D labels without the text overlays (the
+    page prints those numbers in its table), cropped to the model so it reads at page size."""
+    return crop_to_content(_bare_render(scene3d_obj, view))
+
+
+def _inspection_views(view: str) -> list[str]:
+    """The cameras of an inspection's pictures: the report's, then the section (once)."""
+    return list(dict.fromkeys((view, "section")))
+
+
+def inspection_images(scene3d_obj, view: str) -> list[tuple[str, np.ndarray]]:
+    """The inspection page's pictures: the report's camera and the section in the plane of the
+    tilt (where the median line's drift shows), without text overlays (the page prints the
+    numbers and the colour key); cropped on the page."""
+    return [(INSPECTION_VIEW_NAMES.get(v, v), _bare_render(scene3d_obj, v)) for v in _inspection_views(view)]
+
+
+# ------------------------------------------------------------------------------------ writing
+
+
+def write_report(res: SceneResult, out_dir, sizes: dict[str, float] | None = None, view: str = "iso",
+                 progress: Progress | None = None, inspections: dict | None = None) -> list[Path]:
+    """Write every file of the report into ``out_dir``; returns the paths written.
+
+    ``sizes``: produced sizes (feature id -> size) for the what-if pictures; the rest stays at the
+    worst case. ``view``: camera of the 3D picture (one of viewer.scene3d.VIEWS).
+    ``inspections``: feature id -> :class:`geom.inspect.InspectionResult`, one inspection page
+    each (first in the PDF); None inspects every feature with ``[feature.measured]`` data.
+    Fasteners of the scene get their own page(s) at the end.
+    """
+    from viewer import scene3d
+
+    out = Path(out_dir)
+    out.mkdir(parents=True, exist_ok=True)
+    items = report_items(res)
+    if inspections is None:
+        inspections = scene_inspections(res.scene)
+    fids = list(res.fasteners)
+    fastener_pages = [fids[i:i + FASTENERS_PER_PAGE] for i in range(0, len(fids), FASTENERS_PER_PAGE)]
+    steps = len(items) * (1 + len(VIEW_FILES)) + len(inspections) + len(fids) + 2
+    n = 0
+    written: list[Path] = []
+
+    def say(what: str, paths):
+        nonlocal n
+        n += 1
+        if progress is not None:
+            shown = ", ".join(str(q) for q in paths)
+            progress(f"[{n}/{steps}] {what} -> {shown}")
+
+    images3d = {}
+    page_states = {}
+    for item in items:
+        states = item_states(res, item, sizes)
+        page_states[item.file_key] = states
+        # 3D picture, rendered once and reused on the page
+        png = out / f"{item.file_key}_3d_{view}.png"
+        if item.index is not None:
+            s3 = scene3d.build_mate_scene(res, item.index, states=states)
+        else:
+            s3 = scene3d.build_feature_scene(res, item.feature_id, state=states[item.feature_id])
+        pics = scene3d.render_variants(s3, view, {"full": (png, None), "page": (None, _page_layers())})
+        images3d[item.file_key] = crop_to_content(pics["page"])
+        written.append(png)
+        say(f"{item.label}: 3D view", [png])
+        for name in VIEW_FILES:
+            fig, _ = F.draw_view(name, res, item.ref, states)
+            paths = [out / f"{item.file_key}_{name}.{ext}" for ext in ("png", *VECTOR_FORMATS)]
+            for q in paths:
+                F.save_figure(fig, q)
+            written += paths
+            say(f"{item.label}: {name} view", paths)
+    insp_pages = {}
+    for fid, insp in inspections.items():
+        s3 = scene3d.build_inspection_scene(res, insp)
+        key = f"inspection_{file_slug(fid)}"
+        cams = _inspection_views(view)
+        pngs = [out / f"{key}_3d_{v}.png" for v in cams]
+        # per camera the full picture (the PNG) and the page's (no text overlays), one plotter each
+        pics = [scene3d.render_variants(s3, v, {"full": (q, None), "page": (None, _page_layers())}, size=RENDER_SIZE)
+                for q, v in zip(pngs, cams)]
+        written += pngs
+        images = [(INSPECTION_VIEW_NAMES.get(v, v), pic["page"]) for v, pic in zip(cams, pics)]
+        insp_pages[fid] = (images, s3.caption, s3.legend, tuple(q.name for q in pngs))
+        say(f"inspection {fid}: 3D views", pngs)
+    fastener_files = {}
+    for fid in fids:
+        fig = fastener_figure(res, fid)
+        paths = [out / f"fastener_{file_slug(fid)}.{ext}" for ext in ("png", "svg")]
+        for q in paths:
+            F.save_figure(fig, q)
+        written += paths
+        fastener_files[fid] = paths[0].name
+        say(f"fastener {fid}: schematic", paths)
+    pdf = out / "report.pdf"
+    rep = dict(res.scene.report)
+    pages = len(inspections) + len(items) + len(fastener_pages)
+    with F.style_context():
+        with PdfPages(pdf, metadata={"Title": f"Fit evidence: {res.scene.title}",
+                                     "Subject": rep.get("report_number", ""),
+                                     "Creator": "matezone report"}) as pp:
+            page = 0
+            for fid, insp in inspections.items():
+                page += 1
+                imgs, caption, legend, names = insp_pages[fid]
+                pp.savefig(build_inspection_page(res, insp, imgs, page, pages, caption, legend, names))
+            for item in items:
+                page += 1
+                fig = build_page(res, item, page_states[item.file_key], images3d[item.file_key], page, pages, view,
+                                 design_intent=bool(inspections))
+                pp.savefig(fig)
+            for group in fastener_pages:
+                page += 1
+                pp.savefig(build_fastener_page(res, group, page, pages, fastener_files))
+    written.append(pdf)
+    say(f"report ({pages} page{'s' if pages != 1 else ''})", [pdf])
+    js = out / "results.json"
+    data = result_to_json(res)
+    from geom.inspect import inspection_to_json
+
+    data["inspections"] = {fid: inspection_to_json(insp) for fid, insp in inspections.items()}
+    data["caution"] = CAUTION
+    js.write_text(json.dumps(data, indent=2, ensure_ascii=False) + "\n", encoding="utf-8")
+    written.append(js)
+    say("numbers", [js])
+    return written
