@@ -46,8 +46,12 @@ MEASURED_KEYS = ("size", "related_size", "axis_deviation", "axis_bottom", "axis_
                  "uncertainty", "points")
 MATE_KEYS = ("hole", "pin")
 FASTENER_KEYS = ("id", "kind", "fastener", "hole", "thread_depth", "projection")
-REPORT_KEYS = ("part", "revision", "part_name", "lot", "serial", "quantity", "report_number",
-               "requirement", "drawing_zone", "found_by", "prepared_by", "date", "supplier", "remarks")
+REPORT_KEYS = ("part", "revision", "part_name", "drawing", "sheet", "lot", "serial", "quantity",
+               "quantity_inspected", "quantity_rejected", "report_number", "requirement", "drawing_zone",
+               "customer", "order", "method", "equipment", "calibration", "found_by", "inspector",
+               "prepared_by", "disposition_by", "containment", "corrective_action", "date", "supplier",
+               "remarks")
+COUNT_KEYS = ("quantity", "quantity_inspected", "quantity_rejected")  # whole numbers of parts
 
 
 MAX_MAGNITUDE = 1e6  # largest length, location or tolerance accepted (scene units): 1 km in mm
@@ -358,7 +362,7 @@ def parse(data: dict, file: str = "<scene>", source: str | None = None) -> Scene
                 val = rv[k]
                 if isinstance(val, bool) or not isinstance(val, (str, int, float)):
                     c.fail(_join("report", k), f"expected text or a number, got {_show(val)}")
-                if k == "quantity":
+                if k in COUNT_KEYS:
                     if isinstance(val, str) or isinstance(val, float) and not (math.isfinite(val) and val.is_integer()):
                         c.fail(_join("report", k), f"expected a whole number of parts, got {_show(val)}")
                     if not 0 <= val <= 10**9:
@@ -371,6 +375,10 @@ def parse(data: dict, file: str = "<scene>", source: str | None = None) -> Scene
                     if why:
                         c.fail(_join("report", k), why)
                 items.append((k, str(val)))
+        counts = {k: int(v) for k, v in items if k in COUNT_KEYS}
+        if counts.get("quantity_rejected", 0) > counts.get("quantity_inspected", counts.get("quantity_rejected", 0)):
+            c.fail("report.quantity_rejected", f"expected at most report.quantity_inspected = "
+                                               f"{counts['quantity_inspected']} parts, got {counts['quantity_rejected']}")
         report = tuple(items)
     return Scene(title, units, standard, tuple(feats), tuple(mates), tuple(fasteners), report, source)
 
@@ -453,7 +461,7 @@ def dumps(scene: Scene) -> str:
         if fa.projection is not None:
             out.append(f"projection = {_v(fa.projection)}")
     if scene.report:
-        out += ["", "[report]"] + [f"{k} = {v if k == 'quantity' and v.isdigit() else _v(v)}"
+        out += ["", "[report]"] + [f"{k} = {v if k in COUNT_KEYS and v.isdigit() else _v(v)}"
                                    for k, v in scene.report]
     return "\n".join(out) + "\n"
 
