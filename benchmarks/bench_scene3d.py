@@ -7,7 +7,8 @@ For each mate (and each feature) prints the first call (nothing of that scene bu
 process) and the warm time per call: the median over ROUNDS what-if states that differ from one
 call to the next (the hole's size swept through its limits, as a slider does), so the
 state-dependent geometry is recomputed every time. Target: warm ``build_mate_scene`` well under
-10 ms. Prints figures; asserts nothing.
+10 ms. Prints figures; asserts nothing. Run it without ``MATEZONE_CHECK_SHARED=1`` (that debug
+switch of :mod:`viewer.memo` fingerprints every shared mesh on every hand-out); it says so if set.
 """
 
 from __future__ import annotations
@@ -49,6 +50,10 @@ def _row(name: str, what: str, first, ts) -> str:
 
 
 def main() -> int:
+    from viewer import memo
+
+    if memo.CHECK_SHARED:
+        print("note: MATEZONE_CHECK_SHARED=1 is set: every shared mesh is fingerprinted, figures are slower")
     paths = sorted((ROOT / "scenes").glob("*.toml"))
     results = [(p.name, geom.analyse_scene(geom.load(p))) for p in paths]
     # interpreter warm-up (imports, first numpy / VTK calls) on a state no benchmark uses

@@ -12,16 +12,35 @@ import pytest
 
 import geom
 from geom.boundaries import FeatureState
+from viewer import memo
 from viewer import style as S
 from viewer.scene3d import (
-    HIDDEN_BY_DEFAULT, LAYERS, N_PHI, N_PHI_CAGE, VIEWS, Scene3D, add_to_plotter, auto_exaggeration,
-    build_feature_scene, build_inspection_scene, build_mate_scene, render_image, section_cut,
+    HIDDEN_BY_DEFAULT,
+    LAYERS,
+    N_PHI,
+    N_PHI_CAGE,
+    VIEWS,
+    Scene3D,
+    add_to_plotter,
+    auto_exaggeration,
+    build_feature_scene,
+    build_inspection_scene,
+    build_mate_scene,
+    render_image,
+    section_cut,
 )
 
 pv = pytest.importorskip("pyvista")
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 SCENES = sorted(glob.glob(os.path.join(ROOT, "scenes", "*.toml")))
+
+
+@pytest.fixture(autouse=True)
+def _check_shared(monkeypatch):
+    """Every mesh and array a memo hands out is checked against its fingerprint
+    (viewer.memo, MATEZONE_CHECK_SHARED): nothing downstream may modify a shared mesh."""
+    monkeypatch.setattr(memo, "CHECK_SHARED", True)
 
 
 def _res(name: str) -> geom.SceneResult:
@@ -239,8 +258,17 @@ def test_auto_exaggeration(gearbox):
     # the largest step of the round-number series (1 -> 1.5)
     assert k * t <= 0.10 * hole.mmc + 1e-12
     assert k * t >= 0.10 * hole.mmc / 1.5
-    assert build_mate_scene(gearbox, 0).exaggeration == k
-    assert "x 50" in build_mate_scene(gearbox, 0).caption or f"x {k:g}" in build_mate_scene(gearbox, 0).caption
+    # by hand from the scene file: 0.10 x 8.000 / 0.015 = 53.3 (the hole's zone at MMC is the
+    # larger one, the dowel's is 0.005), rounded down in the round series 1, 1.5, 2, 2.5, 3, 4,
+    # 5, 6, 8 x 10^n (common practice, no source): 50. The cap against shrinking a drawn radius
+    # below a third of R0 = 4 does not bite: the smallest radius any boundary can have is the
+    # dowel's (7.965 - 0.015) / 2 = 3.975, and (2/3) x 4 / (4 - 3.975) = 106.7 > 53.3.
+    assert k == 50.0
+    sc3 = build_mate_scene(gearbox, 0)
+    assert sc3.exaggeration == 50.0
+    assert sc3.caption == ("RADIAL DEVIATIONS x 50\nzones, gaps, tilts, size differences drawn x 50 "
+                           "about \u00d88.000; lengths true")  # about the hole's MMC diameter 8.000
+    assert build_mate_scene(gearbox, 0, exaggeration=1.0).caption.startswith("TRUE SCALE")
 
 
 def test_bowed_and_width_zones_build():

@@ -14,15 +14,29 @@ import geom
 from geom.conformance import Outcome, verdict_word
 from geom.inspect import inspect_feature
 from geom.scenefile import loads
+from viewer import memo
 from viewer import style as S
 from viewer.scene3d import (
-    LAYERS, N_PHI, VIEWS, add_to_plotter, build_inspection_scene, render_image, section_cut,
+    LAYERS,
+    N_PHI,
+    VIEWS,
+    add_to_plotter,
+    build_inspection_scene,
+    render_image,
+    section_cut,
 )
 
 pv = pytest.importorskip("pyvista")
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 SCAN = os.path.join(ROOT, "scenes", "cap_bore_inspection.toml")
+
+
+@pytest.fixture(autouse=True)
+def _check_shared(monkeypatch):
+    """Every mesh and array a memo hands out is checked against its fingerprint
+    (viewer.memo, MATEZONE_CHECK_SHARED): nothing downstream may modify a shared mesh."""
+    monkeypatch.setattr(memo, "CHECK_SHARED", True)
 
 
 @pytest.fixture(scope="module")
@@ -182,6 +196,7 @@ def test_readouts_and_verdicts(scan, true_scale):
     for v in (insp.unrelated.diameter, insp.related.diameter, insp.bonus, insp.tolerance_allowed,
               insp.virtual_condition, insp.axis.deviation):
         assert u.fmt(v) in text
+    # the id and limits 8.000 - 8.022 of the scene file; the bonus taken on the unrelated AME (ASME, from memory)
     assert "cap-bore" in text and "8.000 - 8.022" in text and "bonus basis: unrelated" in text
     assert "tolerance allowed = t + bonus = 0.015 + " in text  # ASME Y14.5: t + bonus, t = 0.015 (scene file)
     # the two axis readings, computed here: the feature axis (axis of the unrelated envelope,

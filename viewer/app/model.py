@@ -5,239 +5,55 @@ Widgets never talk to each other: they call the model's methods and observe its 
 which are the only change notification. Every edit goes through :func:`geom.scenefile.parse`
 (the scene is turned into the same dict a TOML file decodes to, changed, and parsed), so the
 window accepts and rejects exactly what the command line does, with the same message.
+
+The logic behind it needs no Qt and lives in :mod:`viewer.windowlogic` (focus, what-if states,
+the scene as a dict, points files); the names this module had before are importable from it
+still. The inspection runs in :class:`viewer.app.workers.InspectionWorker`'s thread.
 """
 
 from __future__ import annotations
 
 import copy
-import os
-import time
-import tomllib
-from dataclasses import dataclass, replace
+from dataclasses import replace
 from pathlib import Path
 
-from PyQt5.QtCore import QObject, QThread, pyqtSignal, pyqtSlot
+from PyQt5.QtCore import QObject, QThread, pyqtSignal
 from PyQt5.QtWidgets import QUndoCommand, QUndoStack
 
 from geom import boundaries as B
-from geom.analysis import (
-    Derived, SceneResult, analyse_scene, clearance_at, fits, mate_verdict, term, tolerance_allowed_derived,
+from geom.analysis import SceneResult, analyse_scene
+from geom.model import Feature, Scene
+from geom.scenefile import SceneError, load, save
+from viewer.windowlogic import focus
+from viewer.windowlogic.editing import (
+    feature_index,
+    new_scene,
+    parse_dict,
+    rename_in_mates,
+    scene_dict,
+    scene_label,
 )
-from geom.model import Feature, Material, Scene
-from geom.scenefile import SceneError, dumps, load, parse, save
+from viewer.windowlogic.points import (
+    has_measured,
+    inspection_errors,
+    outside_warning,
+    points_entry,
+    points_outside,
+    points_source,
+    rebase_points,
+    report_points,
+    scene_folder,
+)
+from viewer.windowlogic.whatif import Row, Verdict, mate_verdict_at, moved_state, settled_states, whatif_rows
 
-# ---------------------------------------------------------------- scene <-> plain dict
+from .workers import InspectionWorker
 
-
-def scene_dict(scene: Scene) -> dict:
-    """The decoded-TOML form of a scene: what :func:`geom.scenefile.parse` takes."""
-    return tomllib.loads(dumps(scene))
-
-
-def scene_label(path: str | None) -> str:
-    return Path(path).name if path else "<unsaved scene>"
-
-
-def parse_dict(data: dict, path: str | None) -> Scene:
-    """Validate ``data`` with the scene-file rules; raises :class:`SceneError`."""
-    return parse(data, scene_label(path), str(Path(path).resolve()) if path else None)
-
-
-def new_scene() -> Scene:
-    """A small valid scene to start from (File > New): one hole, one pin, one mate."""
-    data = {
-        "title": "Untitled fit",
-        "units": "mm",
-        "standard": "asme",
-        "feature": [
-            # position needs datums that locate the axis (A alone only orients): A | B | C
-            {"id": "hole-1", "kind": "hole", "limits": [10.0, 10.02], "length": 10.0,
-             "tolerance": {"characteristic": "position", "value": 0.05, "material": "MMC",
-                           "datums": ["A", "B", "C"]}},
-            {"id": "pin-1", "kind": "pin", "limits": [9.96, 9.98], "length": 10.0,
-             "tolerance": {"characteristic": "perpendicularity", "value": 0.01, "material": "MMC",
-                           "datums": ["A"]}},
-        ],
-        "mate": [{"hole": "hole-1", "pin": "pin-1"}],
-    }
-    return parse(data, "<new scene>")
-
-
-# ---------------------------------------------------------------- what-if readouts (no Qt)
-
-
-def _plain(v: float, decimals: int = 1) -> str:
-    """A percentage or angle as the what-if controls set it (one decimal), without a trailing .0."""
-    return f"{v:.{decimals}f}".rstrip("0").rstrip(".")
-
-
-@dataclass(frozen=True)
-class Row:
-    quantity: str
-    value: str
-    formula: str
-    constant: bool = False  # does not depend on the what-if state
-
-
-def whatif_rows(res: SceneResult, fid: str, state: B.FeatureState) -> list[Row]:
-    """Readouts of one feature at a what-if state; every number comes from geom."""
-    sc = res.scene
-    u, st = sc.units, sc.standard
-    r = res.features[fid]
-    f = r.feature
-    tol = f.tolerance
-    mmc_abbr, lmc_abbr = term("mmc", st)[0], term("lmc", st)[0]
-    mmc_s, lmc_s = u.fmt_cmp(f.mmc, f.lmc)  # compared with each other: never printed equal
-    rows = [Row("produced size", u.fmt(state.size), f"between {mmc_abbr} {mmc_s} and {lmc_abbr} {lmc_s}")]
-    b = B.bonus(f, state.size)
-    bname = term("bonus", st)[0]
-    if tol is None:
-        rows.append(Row(bname, u.fmt(b), "no geometric tolerance"))
-    elif tol.material is Material.RFS:
-        rows.append(Row(bname, u.fmt(b), f"{bname} = 0 ({term('rfs', st)[1]})"))
-    else:
-        ref_key = "mmc" if tol.material is Material.MMC else "lmc"
-        ref = f.mmc if tol.material is Material.MMC else f.lmc
-        rows.append(Row(f"{bname} at this size", u.fmt(b),
-                        Derived("bonus", b, "|size - {" + ref_key + "}|", "|{} - {}|",
-                                (state.size, ref)).formula(u, st)))
-    ta = B.tolerance_allowed(f, state.size)
-    if tol is not None:
-        rows.append(Row("tolerance allowed at this size", u.fmt(ta),
-                        tolerance_allowed_derived(f, b).formula(u, st)))
-        used = state.share * ta
-        rows.append(Row("tolerance used", u.fmt(used),
-                        f"{_plain(state.share * 100)} % of {u.fmt(ta)}, tilted toward "
-                        f"{_plain(state.direction_deg)} deg"))
-        tilt = B.tilt_angle_deg(f, used)
-        if tilt is not None:
-            rows.append(Row("axis tilt", f"{tilt:.4f} deg",
-                            f"atan(used / L) = atan({u.fmt(used)} / {u.fmt(B.tilt_length(f))})"))
-    eff = B.effective_size(f, state)
-    sign = "-" if f.kind.value == "hole" else "+"
-    what = "clear opening" if f.kind.value == "hole" else "swept envelope"
-    rows.append(Row(f"{what} normal to A", u.fmt(eff),
-                    f"size {sign} used = {u.fmt(state.size)} {sign} {u.fmt(state.share * ta)} = {u.fmt(eff)}"))
-    vc = r.virtual_condition
-    if vc.value is not None:
-        rows.append(Row(f"{term(vc.key, st)[1]} (constant)", u.fmt(vc.value), vc.formula(u, st), constant=True))
-        if tol.material is Material.MMC:
-            # with all of the tolerance used, the boundary presented equals the VC at every size
-            gap = abs(eff - vc.value)
-            rows.append(Row(f"room left to {vc.abbr(st)}", u.fmt(gap),
-                            f"|{what} - {vc.abbr(st)}| = |{u.fmt(eff)} - {u.fmt(vc.value)}| = {u.fmt(gap)}"))
-    return rows
-
-
-@dataclass(frozen=True)
-class Verdict:
-    assembles: bool
-    headline: str  # "ASSEMBLES ..." / "INTERFERES by ..."
-    worst_case: str  # geom's worst-case verdict sentence
-    formula: str
-    whatif_clearance: float
-
-
-def mate_verdict_at(res: SceneResult, mate_index: int, states: dict[str, B.FeatureState]) -> Verdict:
-    from geom.analysis import mate_formula
-
-    sc = res.scene
-    u = sc.units
-    m = res.mates[mate_index]
-    hole, pin = sc.feature(m.hole), sc.feature(m.pin)
-    c = clearance_at(hole, pin, states[m.hole], states[m.pin])
-    ok = fits(c)  # geom's one fit predicate (line-to-line included)
-    headline = mate_verdict(c, ok, u).replace(" in the worst case", " at the sizes set")
-    return Verdict(ok, headline, mate_verdict(m.clearance_min, m.assembles, u),
-                   mate_formula(m, u, sc.standard), c)
-
-
-# ---------------------------------------------------------------- inspection (geom.inspect, off the GUI thread)
-
-def inspection_errors() -> tuple[type, ...]:
-    """The message-carrying errors ``matezone inspect`` turns into one line (same classes)."""
-    from geom.fitting import FitError
-    from geom.inspect import InspectError
-    from geom.pointsfile import PointsError
-
-    return (InspectError, PointsError, FitError)
-
-
-def points_source(scene: Scene, fid: str, points: str | None = None) -> tuple[str | None, float | None]:
-    """(absolute path, modification time) of the points an inspection of ``fid`` reads: ``points``
-    if given, else the feature's ``[feature.measured] points`` resolved as geom.inspect resolves
-    it (relative to the scene file). (None, None) for typed values."""
-    if points is None:
-        m = scene.feature(fid).measured
-        if m is None or m.points is None:
-            return None, None
-        base = Path(scene.source).parent if scene.source else Path.cwd()
-        path = Path(m.points) if Path(m.points).is_absolute() else base / m.points
-    else:
-        path = Path(points)
-    path = path.resolve()
-    try:
-        return str(path), path.stat().st_mtime
-    except OSError:
-        return str(path), None
-
-
-def scene_folder(scene: Scene) -> Path:
-    """The folder a scene's points files must lie in (geom.inspect reads no file outside it)."""
-    return (Path(scene.source).parent if scene.source else Path.cwd()).resolve()
-
-
-def points_outside(scene: Scene, fid: str) -> bool:
-    """True when the feature's recorded points file lies outside the scene's folder: geom.inspect
-    refuses to read it from the scene file (a scene must not make the program read any file)."""
-    path, _ = points_source(scene, fid)
-    return path is not None and not Path(path).is_relative_to(scene_folder(scene))
-
-
-def has_measured(scene: Scene, fid: str) -> bool:
-    return scene.feature(fid).measured is not None
-
-
-def points_entry(points_path: str, scene_path: str | None) -> str:
-    """How a points file is written in ``[feature.measured] points``: relative to the scene
-    file's folder when there is one (and the relative form exists), else absolute."""
-    p = Path(points_path).resolve()
-    if scene_path:
-        try:
-            return Path(os.path.relpath(p, Path(scene_path).resolve().parent)).as_posix()
-        except ValueError:  # another drive
-            pass
-    return str(p)
-
-
-class InspectionWorker(QObject):
-    """Runs :func:`geom.inspect.inspect_feature` in its own thread. A request carries a token;
-    the answer (result or the error's message) comes back with it, so the model can drop answers
-    to requests it no longer wants."""
-
-    done = pyqtSignal(int, object, float)  # token, InspectionResult, seconds
-    failed = pyqtSignal(int, str)  # token, message (the CLI's text)
-
-    @pyqtSlot(int, object, str, object, str)
-    def run(self, token: int, scene, fid: str, points, basis: str) -> None:
-        from geom.inspect import inspect_feature
-
-        t0 = time.perf_counter()
-        try:
-            res = inspect_feature(scene, fid, points=points, bonus_basis=basis)
-        except inspection_errors() as e:
-            self.failed.emit(token, str(e))
-            return
-        except OSError as e:
-            self.failed.emit(token, f"{points or fid}: cannot be read ({e.strerror or e})")
-            return
-        except Exception as e:  # the window keeps running; the message says what went wrong
-            self.failed.emit(token, f"internal error while inspecting {fid!r}: {type(e).__name__}: {e}")
-            return
-        self.done.emit(token, res, time.perf_counter() - t0)
-
-
-# ---------------------------------------------------------------- the model
+# names importable from here before the logic moved to viewer.windowlogic (and the worker to .workers)
+__all__ = [
+    "SceneModel", "InspectionWorker", "Row", "Verdict", "feature_index", "has_measured", "inspection_errors",
+    "mate_verdict_at", "new_scene", "parse_dict", "points_entry", "points_outside", "points_source",
+    "rename_in_mates", "scene_dict", "scene_folder", "scene_label", "whatif_rows",
+]
 
 
 class _Edit(QUndoCommand):
@@ -310,23 +126,15 @@ class SceneModel(QObject):
     def focus_features(self) -> list[str]:
         """Ids of the features whose what-if controls belong to the current focus (none for a
         fastener: a fastener pattern has no what-if state)."""
-        kind, key = self.focus
-        if kind == "mate":
-            m = self.scene.mates[key]
-            return [m.hole, m.pin]
-        if kind in ("feature", "inspection"):
-            return [key]
-        return []
+        return focus.focus_features(self.scene, self.focus)
 
     def focus_fastener(self) -> str | None:
         """The fastener looked at, or None."""
-        kind, key = self.focus
-        return key if kind == "fastener" else None
+        return focus.keyed(self.focus, "fastener")
 
     def focus_inspection(self) -> str | None:
         """The feature whose inspection is looked at, or None."""
-        kind, key = self.focus
-        return key if kind == "inspection" else None
+        return focus.keyed(self.focus, "inspection")
 
     def shown_inspection(self):
         """The inspection result of the focused feature (the last valid one), or None."""
@@ -337,26 +145,12 @@ class SceneModel(QObject):
 
     def focus_mate(self) -> int | None:
         """Index of the mate looked at, or of the first mate the focused feature is in."""
-        kind, key = self.focus
-        if kind == "mate":
-            return key
-        if kind != "feature":
-            return None
-        for i, m in enumerate(self.scene.mates):
-            if key in (m.hole, m.pin):
-                return i
-        return None
+        return focus.focus_mate(self.scene, self.focus)
 
     # ------------------------------------------------------------ focus and what-if
 
     def set_focus(self, kind: str, key) -> None:
-        if kind == "mate" and not (isinstance(key, int) and 0 <= key < len(self.scene.mates)):
-            return
-        if kind in ("feature", "inspection") and key not in {f.id for f in self.scene.features}:
-            return
-        if kind == "fastener" and key not in {fa.id for fa in self.scene.fasteners}:
-            return
-        if kind not in ("mate", "feature", "inspection", "fastener"):
+        if not focus.focus_valid(self.scene, (kind, key)):
             return
         if (kind, key) != self.focus:
             self.focus = (kind, key)
@@ -367,14 +161,8 @@ class SceneModel(QObject):
     def set_state(self, fid: str, size: float | None = None, share: float | None = None,
                   direction_deg: float | None = None) -> None:
         """Move one feature's what-if state (size clamped to its limits, share to 0..1)."""
-        f = self.scene.feature(fid)
         old = self.states[fid]
-        lo, hi = f.limits
-        new = B.FeatureState(
-            old.size if size is None else min(max(float(size), lo), hi),
-            old.share if share is None else min(max(float(share), 0.0), 1.0),
-            old.direction_deg if direction_deg is None else float(direction_deg) % 360.0,
-        )
+        new = moved_state(self.scene.feature(fid), old, size, share, direction_deg)
         if new != old:
             self.states[fid] = new
             self.statesChanged.emit()
@@ -385,50 +173,12 @@ class SceneModel(QObject):
         self.statesChanged.emit()
 
     def _reset_states(self, keep: bool = True) -> None:
-        old = self.states if keep else {}
-        states = {}
-        for f in self.scene.features:
-            st = old.get(f.id)
-            lo, hi = f.limits
-            if st is not None and lo <= st.size <= hi:
-                states[f.id] = st
-            elif st is not None:
-                states[f.id] = B.FeatureState(f.mmc, st.share, st.direction_deg)
-            else:
-                states[f.id] = self._worst_case(f)
-        self.states = states
-
-    def _worst_case(self, f: Feature) -> B.FeatureState:
-        """MMC, all of the tolerance used; a pin in a mate tilts opposite to the hole (the same
-        default the 2D views and the report use)."""
-        from geom.boundaries import worst_case_state
-
-        in_mate = any(f.id in (m.hole, m.pin) for m in self.scene.mates)
-        return worst_case_state(f, in_mate)
+        """A state for every feature: the one it had while its size is within the limits, else
+        the worst case (:func:`viewer.windowlogic.whatif.settled_states`)."""
+        self.states = settled_states(self.scene, self.states if keep else {})
 
     def _default_focus(self) -> None:
-        """The first mate, else the first feature, else the first fastener (a scene may hold
-        fastener tables only)."""
-        sc = self.scene
-        if sc.mates:
-            self.focus = ("mate", 0)
-        elif sc.features:
-            self.focus = ("feature", sc.features[0].id)
-        elif sc.fasteners:
-            self.focus = ("fastener", sc.fasteners[0].id)
-        else:
-            self.focus = ("none", None)
-
-    def _focus_valid(self) -> bool:
-        kind, key = self.focus
-        sc = self.scene
-        if kind == "mate":
-            return isinstance(key, int) and 0 <= key < len(sc.mates)
-        if kind in ("feature", "inspection"):
-            return key in {f.id for f in sc.features}
-        if kind == "fastener":
-            return key in {fa.id for fa in sc.fasteners}
-        return False
+        self.focus = focus.default_focus(self.scene)
 
     # ------------------------------------------------------------ edits
 
@@ -458,7 +208,7 @@ class SceneModel(QObject):
         self.scene = scene
         self.result = result
         self._reset_states()
-        if not self._focus_valid():
+        if not focus.focus_valid(self.scene, self.focus):
             self._default_focus()
         self.sceneChanged.emit()
         self.statesChanged.emit()
@@ -499,7 +249,7 @@ class SceneModel(QObject):
         if not target:
             raise ValueError("no file name given")
         moved = target != self.path
-        scene = self._rebase_points(self.scene, target) if moved else self.scene
+        scene = rebase_points(self.scene, target) if moved else self.scene
         save(scene, target)
         if moved:
             self.path = str(target)
@@ -510,36 +260,13 @@ class SceneModel(QObject):
         self.message.emit("info", f"saved {self.path}")
         for f in self.scene.features:
             if points_outside(self.scene, f.id):
-                self.message.emit("info", self._outside_warning(f.id))
+                self.message.emit("info", outside_warning(self.scene, f.id))
 
     def report_points(self) -> tuple[dict[str, str], list[str]]:
         """The points files an exported report reads, as this window reads them: (feature id ->
         absolute path of its ``[feature.measured] points`` file, messages for the files geom would
         refuse to read from the scene, those outside its folder that were not picked here)."""
-        points, refused = {}, []
-        for f in self.scene.features:
-            if f.measured is None or f.measured.points is None:
-                continue
-            path, _ = points_source(self.scene, f.id)
-            if points_outside(self.scene, f.id) and path not in self._picked:
-                refused.append(f"feature {f.id!r}: its points file {path} is outside the scene's folder "
-                               f"{scene_folder(self.scene)}; a scene may only name points inside its own folder "
-                               "(load the file with File > Load measured points…, or copy it there)")
-                continue
-            points[f.id] = path
-        return points, refused
-
-    def _rebase_points(self, scene: Scene, target: str) -> Scene:
-        """The scene with each relative points file rewritten relative to ``target``'s folder
-        (same files; a scene saved elsewhere still finds its measured points)."""
-        feats = []
-        for f in scene.features:
-            m = f.measured
-            if m is not None and m.points is not None and not Path(m.points).is_absolute():
-                path, _ = points_source(scene, f.id)
-                f = f.with_(measured=replace(m, points=points_entry(path, target)))
-            feats.append(f)
-        return replace(scene, features=tuple(feats))
+        return report_points(self.scene, self._picked)
 
     # ------------------------------------------------------------ inspection
 
@@ -582,12 +309,6 @@ class SceneModel(QObject):
             self._submit(fid, path, record=False)
             return
         self._submit(fid, None, record=False)
-
-    def _outside_warning(self, fid: str) -> str:
-        path, _ = points_source(self.scene, fid)
-        return (f"note: {path} is outside the scene's folder {scene_folder(self.scene)}: this window reads it "
-                "because you picked it, but a scene file may only name points inside its own folder; copy "
-                "the file there (or give it with `matezone inspect --points`)")
 
     def load_points(self, fid: str, path: str) -> None:
         """Inspect ``fid`` from the CSV ``path``. When it can be used, the path is recorded in the
@@ -662,7 +383,7 @@ class SceneModel(QObject):
             n = 0 if res.points is None else len(res.points)
             self.message.emit("info", f"{n} measured points of {req['fid']} read from {req['points']}")
             if points_outside(self.scene, req["fid"]):
-                self.message.emit("info", self._outside_warning(req["fid"]))
+                self.message.emit("info", outside_warning(self.scene, req["fid"]))
         if self.focus != ("inspection", req["fid"]):
             self.focus = ("inspection", req["fid"])
             self.focusChanged.emit()
@@ -686,17 +407,3 @@ class SceneModel(QObject):
 
     def feature(self, fid: str) -> Feature:
         return self.scene.feature(fid)
-
-
-def feature_index(scene: Scene, fid: str) -> int:
-    for i, f in enumerate(scene.features):
-        if f.id == fid:
-            return i
-    raise KeyError(fid)
-
-
-def rename_in_mates(data: dict, old: str, new: str) -> None:
-    for m in data.get("mate", []):
-        for role in ("hole", "pin"):
-            if m.get(role) == old:
-                m[role] = new

@@ -1,30 +1,39 @@
-"""The main window: panels around the 3D and 2D views, menus, files, undo, export."""
+"""The main window: panels around the 3D and 2D views; files, undo, the recent-files list and
+the exports. The menus are made in :mod:`.menus`, the report is written by
+:class:`.workers.ReportWorker`."""
 
 from __future__ import annotations
 
 import os
-import subprocess
 import sys
-import tempfile
-import threading
 import traceback
 from pathlib import Path
 
-from PyQt5.QtCore import QObject, QSettings, Qt, QThread, QUrl, pyqtSignal
-from PyQt5.QtGui import QDesktopServices, QKeySequence
+from PyQt5.QtCore import QSettings, Qt, QThread, QUrl
+from PyQt5.QtGui import QDesktopServices
 from PyQt5.QtWidgets import (
-    QAction, QFileDialog, QLabel, QMainWindow, QMessageBox, QProgressDialog, QScrollArea, QSplitter,
-    QTabWidget, QVBoxLayout, QWidget,
+    QFileDialog,
+    QLabel,
+    QMainWindow,
+    QMessageBox,
+    QProgressDialog,
+    QScrollArea,
+    QSplitter,
+    QTabWidget,
+    QVBoxLayout,
+    QWidget,
 )
 
-from geom.readout import CAUTION
-from geom.scenefile import SceneError, load, save
+from geom.scenefile import SceneError, load
 
 from . import glyphs
+from .menus import APP_NAME, build_menus
 from .model import SceneModel
 from .panels import ContentsList, FeatureForm, MateForm, MessageBar, ReadoutTable, SceneForm, VerdictBanner, WhatIfPanel
+from .workers import ReportWorker
 
-APP_NAME = "matezone"
+__all__ = ["MainWindow", "ReportWorker", "settings", "APP_NAME", "RECENT_MAX", "SETTINGS_ENV"]
+
 RECENT_MAX = 8
 FILE_FILTER = "Scene files (*.toml);;All files (*)"
 POINTS_FILTER = "Measured points (*.csv);;All files (*)"
@@ -50,80 +59,6 @@ def _top_aligned(widget: QWidget) -> QWidget:
     lay.addWidget(widget)
     lay.addStretch(1)
     return page
-
-
-class ReportWorker(QObject):
-    """Runs the report pipeline off the GUI thread: ``matezone report`` on the scene shown
-    (written to a temporary file under its own name), with the what-if sizes, the bonus basis
-    and the measured points files as the window reads them (given with ``--points``: the
-    temporary copy is not in the scene's folder, so relative paths would not reach them). A
-    separate process keeps the off-screen renderer apart from the window's OpenGL context.
-
-    The command writes the folder through :func:`viewer.reportdir.write_report_atomic`: a folder
-    holding other files is refused with one message, and :meth:`cancel` (SIGTERM) leaves the
-    previous report whole (the command exits 130 with one message)."""
-
-    progress = pyqtSignal(str)
-    finished = pyqtSignal(str)  # output folder
-    failed = pyqtSignal(str)  # the command's one message
-
-    def __init__(self, scene, name: str, folder: str, sizes: dict[str, float], view: str,
-                 points: dict[str, str] | None = None, bonus_basis: str = "unrelated"):
-        super().__init__()
-        self.scene, self.name, self.folder, self.sizes, self.view = scene, name, folder, sizes, view
-        self.points, self.bonus_basis = dict(points or {}), bonus_basis
-        self.proc: subprocess.Popen | None = None
-        self.cancelled = False
-        self._lock = threading.Lock()  # cancel() comes from the GUI thread, run() is in the worker's
-
-    def command(self, scene_path: str) -> list[str]:
-        cmd = [sys.executable, "-m", "matezone.cli", "report", scene_path, "--out", self.folder,
-               "--view", self.view, "--bonus-basis", self.bonus_basis]
-        for fid, size in self.sizes.items():
-            cmd += ["--size", f"{fid}={size!r}"]
-        for fid, path in self.points.items():
-            cmd += ["--points", f"{fid}={path}"]
-        return cmd
-
-    def _not_written(self) -> str:
-        return (f"cancelled; nothing was written to {self.folder!r} (a previous report there is unchanged)")
-
-    def run(self) -> None:
-        try:
-            with tempfile.TemporaryDirectory(prefix="matezone-report-") as tmp:
-                path = os.path.join(tmp, self.name if self.name.endswith(".toml") else "scene.toml")
-                save(self.scene, path)
-                self.progress.emit("rendering pictures and writing the PDF…")
-                env = dict(os.environ, PYTHONUNBUFFERED="1")
-                with self._lock:
-                    if self.cancelled:
-                        self.failed.emit(self._not_written())
-                        return
-                    self.proc = subprocess.Popen(self.command(path), stdout=subprocess.PIPE,
-                                                 stderr=subprocess.PIPE, text=True, env=env,
-                                                 cwd=str(Path(__file__).resolve().parents[2]))
-                for line in self.proc.stdout:
-                    if line.strip():
-                        self.progress.emit(line.strip()[:120])
-                err = self.proc.stderr.read()
-                code = self.proc.wait()
-            if code == 0:
-                self.finished.emit(self.folder)
-                return
-            lines = [x.strip() for x in err.strip().splitlines() if x.strip()]
-            msg = lines[-1].removeprefix("matezone: ") if lines else ""
-            if self.cancelled and (code < 0 or not msg):  # stopped before the command could say so
-                msg = self._not_written()
-            self.failed.emit(msg or f"matezone report exited with status {code}")
-        except Exception as e:  # the message goes to the window; the window keeps running
-            self.failed.emit(f"{type(e).__name__}: {e}")
-
-    def cancel(self) -> None:
-        """Stop the report (safe from any thread): the command cleans up its temporary folder."""
-        with self._lock:
-            self.cancelled = True
-            if self.proc is not None and self.proc.poll() is None:
-                self.proc.terminate()
 
 
 class MainWindow(QMainWindow):
@@ -206,7 +141,7 @@ class MainWindow(QMainWindow):
         split.setStretchFactor(1, 1)
         self.setCentralWidget(split)
 
-        self._menus()
+        build_menus(self)
         # the Edit-feature tab's button is for the feature it shows (for a mate: its hole)
         self.feature_form.load_button.clicked.connect(lambda: self.load_points_dialog(fid=self.feature_form.fid))
         self.whatif.loadRequested.connect(self.act["load_points"].trigger)
@@ -219,74 +154,6 @@ class MainWindow(QMainWindow):
         m.focusChanged.connect(self._focus_tab)
         self._title()
         self.statusBar().showMessage("Drag to rotate, right-drag or wheel to zoom, middle-drag to pan.")
-
-    # ------------------------------------------------------------ menus
-
-    def _menus(self) -> None:
-        mb = self.menuBar()
-        fm = mb.addMenu("&File")
-        self.act = {}
-
-        def add(menu, key, text, slot, shortcut=None, tip=""):
-            a = QAction(text, self)
-            if shortcut is not None:
-                a.setShortcut(QKeySequence(shortcut))
-            a.setStatusTip(tip)
-            a.triggered.connect(lambda _c=False: slot())
-            menu.addAction(a)
-            self.act[key] = a
-            return a
-
-        add(fm, "new", "&New", self.file_new, QKeySequence.New, "Start a new scene with one hole, one pin and a mate")
-        add(fm, "open", "&Open…", self.file_open, QKeySequence.Open, "Open a scene file")
-        self.recent_menu = fm.addMenu("Open &recent")
-        self.recent_menu.aboutToShow.connect(self._fill_recent)
-        fm.addSeparator()
-        add(fm, "save", "&Save", self.file_save, QKeySequence.Save)
-        add(fm, "save_as", "Save &as…", self.file_save_as, QKeySequence.SaveAs)
-        fm.addSeparator()
-        add(fm, "load_points", "&Load measured points…", self.load_points_dialog, "Ctrl+L",
-            "Read a CSV of points measured on the selected feature and judge the produced part")
-        fm.addSeparator()
-        add(fm, "export_report", "Export &report…", self.export_report, "Ctrl+Shift+R",
-            "Pictures, PDF and results.json, as `matezone report` writes them")
-        add(fm, "export_image", "Export &image…", self.export_image, "Ctrl+Shift+E",
-            "Save the 3D view, or the 2D view shown, as a picture")
-        add(fm, "open_report_folder", "Open the last report's &folder", self.open_report_folder,
-            tip="Show the folder the last report was written to")
-        self.act["open_report_folder"].setEnabled(False)
-        fm.addSeparator()
-        add(fm, "quit", "&Quit", self.close, QKeySequence.Quit)
-
-        em = mb.addMenu("&Edit")
-        undo = self.model.undo_stack.createUndoAction(self, "&Undo")
-        undo.setShortcut(QKeySequence.Undo)
-        redo = self.model.undo_stack.createRedoAction(self, "&Redo")
-        redo.setShortcut(QKeySequence.Redo)
-        em.addAction(undo)
-        em.addAction(redo)
-        self.act["undo"], self.act["redo"] = undo, redo
-        em.addSeparator()
-        add(em, "worst", "&Worst case", self.model.reset_states, "Ctrl+0",
-            "Every feature at maximum material with all of its tolerance used")
-
-        vm = mb.addMenu("&View")
-        if self.view3d is not None:
-            for i, (v, b) in enumerate(self.view3d.view_buttons.items()):
-                add(vm, f"view_{v}", f"Camera: {b.text()}", lambda v=v: self.view3d.set_view(v), f"Ctrl+{i + 1}")
-            vm.addSeparator()
-            lm = vm.addMenu("Layers")
-            for a in self.view3d.layer_actions.values():
-                lm.addAction(a)
-
-        hm = mb.addMenu("&Help")
-        add(hm, "about", "&About matezone", self._about)
-
-    def _about(self) -> None:
-        QMessageBox.about(self, "About matezone",
-                          "<b>matezone</b> shows the worst-case fit of toleranced holes and pins: "
-                          "maximum and least material sizes, bonus (ISO: increase), virtual and resultant "
-                          "condition, clearance, fastener tolerances and the conformance of measured parts.<br><br>" + CAUTION)
 
     def _title(self) -> None:
         m = self.model

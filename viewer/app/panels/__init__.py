@@ -1,0 +1,34 @@
+"""Side panels of the window, one module each; every panel observes the
+:class:`~viewer.app.model.SceneModel` and holds no logic beyond layout (the texts and rows come
+from :mod:`viewer.windowlogic`).
+
+- :mod:`.contents`: the scene-contents list (mates, features, inspections, fasteners) and its
+  add / remove buttons
+- :mod:`.forms`: the editor forms' common behaviour, the scene form, the mate form
+- :mod:`.feature_form`: the feature editor
+- :mod:`.whatif`: the what-if controls (produced size, tilt direction, tolerance used)
+- :mod:`.inspection`: the inspection controls (data source, bonus basis, load points)
+- :mod:`.verdict`: the verdict banner
+- :mod:`.readouts`: the readout table
+- :mod:`.messages`: the message bar
+- :mod:`.common`: widget helpers and the window's looks
+"""
+
+from viewer.windowlogic.fields import length_decimals
+from viewer.windowlogic.inspection import BASIS_TEXT, axis_readings, other_axis_basis
+
+from .common import BAD_RED, ERROR_STYLE, NEUTRAL, OK_GREEN, ROLE_LOOK
+from .contents import ContentsList
+from .feature_form import FeatureForm
+from .forms import Form, MateForm, SceneForm
+from .inspection import InspectionControls
+from .messages import MessageBar
+from .readouts import ReadoutTable
+from .verdict import VerdictBanner
+from .whatif import FeatureControls, LengthSpin, WhatIfPanel
+
+__all__ = [
+    "BAD_RED", "BASIS_TEXT", "ERROR_STYLE", "NEUTRAL", "OK_GREEN", "ROLE_LOOK", "ContentsList", "FeatureControls",
+    "FeatureForm", "Form", "InspectionControls", "LengthSpin", "MateForm", "MessageBar", "ReadoutTable",
+    "SceneForm", "VerdictBanner", "WhatIfPanel", "axis_readings", "length_decimals", "other_axis_basis",
+]

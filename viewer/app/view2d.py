@@ -1,0 +1,165 @@
+"""The 2D views of the window: matplotlib figures of :mod:`viewer.figures` in tabs, each on a
+canvas that keeps the figure's designed page (:func:`_fit_canvas_class`); only the tab shown is
+redrawn, the others when they are opened.
+"""
+
+from __future__ import annotations
+
+from PyQt5.QtCore import QTimer
+from PyQt5.QtWidgets import QTabWidget
+
+from .model import SceneModel
+from .views import draw_problem
+
+
+def _fit_canvas_class():
+    from matplotlib.backends.backend_qt5agg import FigureCanvasQTAgg
+
+    class FitCanvas(FigureCanvasQTAgg):
+        """A canvas that scales the figure's resolution so its designed page (8 x 6 in) fits the
+        widget: the layout the figure was drawn for is kept, text just gets smaller."""
+
+        DESIGN = (8.0, 6.0)
+
+        def fit_dpi(self, w: float, h: float) -> float:
+            return max(40.0, min(w / self.DESIGN[0], h / self.DESIGN[1]))
+
+        def adopt(self, fig) -> None:
+            r = self.device_pixel_ratio or 1.0
+            w, h = max(self.width(), 200) * r, max(self.height(), 150) * r
+            dpi = self.fit_dpi(w, h)
+            fig._original_dpi = dpi / r
+            fig.set_dpi(dpi)
+            fig.set_size_inches(w / dpi, h / dpi, forward=False)
+            self.figure = fig
+            fig.set_canvas(self)
+
+        def resizeEvent(self, event):
+            r = self.device_pixel_ratio or 1.0
+            dpi = self.fit_dpi(event.size().width() * r, event.size().height() * r)
+            self.figure._original_dpi = dpi / r
+            self.figure.set_dpi(dpi)
+            super().resizeEvent(event)
+
+    return FitCanvas
+
+
+class Views2D(QTabWidget):
+    """The 2D views in tabs; only the tab shown is redrawn, the others when they are opened."""
+
+    def __init__(self, model: SceneModel, parent=None):
+        super().__init__(parent)
+        from viewer import figures
+
+        FitCanvas = _fit_canvas_class()
+
+        self.figures_mod = figures
+        self.model = model
+        self.canvases: dict = {}
+        self.stale: set[str] = set()
+        for key, title in self.TABS:
+            from matplotlib.figure import Figure
+
+            c = FitCanvas(Figure())
+            self.canvases[key] = c
+            self.addTab(c, title)
+            self.stale.add(key)
+        self.currentChanged.connect(lambda _i: self.refresh_current())
+        self._pending = False
+        self.draw_error: str | None = None  # the last drawing failure shown, until a draw succeeds
+        model.statesChanged.connect(self.schedule)
+        model.sceneChanged.connect(self.schedule)
+        model.focusChanged.connect(self.schedule)
+        model.focusChanged.connect(self._tabs_for_focus)
+        model.sceneChanged.connect(self._tabs_for_focus)
+        self._tabs_for_focus()
+
+    def _tabs_for_focus(self) -> None:
+        """A fastener has one 2D picture (its section schematic), shown in the first tab; the
+        other tabs are for holes and pins."""
+        fast = self.model.focus_fastener() is not None
+        for i, (_key, title) in enumerate(self.TABS):
+            text = "Fastener section" if fast and i == 0 else title
+            if self.tabText(i) != text:
+                self.setTabText(i, text)
+            self.setTabEnabled(i, not fast or i == 0)
+        if fast and self.currentIndex() != 0:
+            self.setCurrentIndex(0)
+
+    TABS = (("through", "Through-view"), ("section", "Section"), ("bonus", "Bonus chart"))  # figures.VIEWS_2D
+    VIEW_NAMES = {"through": "through-view", "section": "section view", "bonus": "bonus chart"}
+
+    def schedule(self) -> None:
+        self.stale = {k for k, _ in self.TABS}
+        if not self._pending:
+            self._pending = True
+            QTimer.singleShot(0, self.refresh_current)
+
+    def current_key(self) -> str:
+        return self.TABS[self.currentIndex()][0]
+
+    def refresh_current(self) -> None:
+        self._pending = False
+        key = self.current_key()
+        if key in self.stale:
+            self.draw(key)
+
+    def subject(self):
+        """What the 2D views show: the mate in focus (or of the focused feature), else the feature;
+        for a fastener its id as ("fastener", id)."""
+        fast = self.model.focus_fastener()
+        if fast is not None:
+            return ("fastener", fast)
+        mi = self.model.focus_mate()
+        kind, key = self.model.focus
+        if kind == "feature" and (mi is None or self.model.scene.feature(key).tolerance is None):
+            return key
+        return mi if mi is not None else key
+
+    def make_figure(self, key: str):
+        """The figure of the 2D view ``key``. Free text in it (names, ids, titles, report fields)
+        is drawn as written: matplotlib's math markup is off while the figure is made, so a
+        ``$`` in a name is a dollar sign (each text keeps that setting)."""
+        import matplotlib
+
+        m = self.model
+        sub = self.subject()
+        with matplotlib.rc_context({"text.parse_math": False}):
+            if isinstance(sub, tuple):  # a fastener: its section schematic (the report's), in every tab
+                from viewer.report import fastener_figure
+
+                return fastener_figure(m.result, sub[1])
+            fig, _data = self.figures_mod.draw_view(key, m.result, sub, dict(m.states))
+            return fig
+
+    def draw(self, key: str) -> None:
+        """Draw the view ``key``; a figure that cannot be made or drawn leaves the last one shown
+        and says why in the message bar."""
+        import matplotlib
+
+        c = self.canvases[key]
+        old = c.figure
+        try:
+            fig = self.make_figure(key)
+            c.adopt(fig)
+            with matplotlib.rc_context({"text.parse_math": False}):
+                c.draw()
+        except Exception as e:
+            if c.figure is not old:  # back to the last figure that drew
+                c.adopt(old)
+                try:
+                    c.draw()
+                except Exception:
+                    pass
+            self.stale.discard(key)  # not retried on every paint; the next change tries again
+            msg = draw_problem(self.VIEW_NAMES.get(key, key), e)
+            if msg != self.draw_error:
+                self.draw_error = msg
+                self.model.message.emit("error", msg)
+            return
+        self.draw_error = None
+        old.clear()
+        self.stale.discard(key)
+
+    def figure(self):
+        return self.canvases[self.current_key()].figure

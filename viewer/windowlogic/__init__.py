@@ -1,0 +1,17 @@
+"""What the desktop window shows and accepts, computed without Qt (importable with no display).
+
+The widgets in :mod:`viewer.app` hold no logic of their own beyond layout: they ask these
+modules for their texts and rows and hand the user's input to them.
+
+- :mod:`~viewer.windowlogic.looks`: the colours of verdict roles and of a rejected field
+- :mod:`~viewer.windowlogic.editing`: the scene as the dict a TOML file decodes to, parsed with
+  the scene-file rules; the contents list's entries; new features and mates; removals
+- :mod:`~viewer.windowlogic.fields`: typed text to numbers and back, the feature form's table
+- :mod:`~viewer.windowlogic.focus`: which mate, feature, inspection or fastener is looked at
+- :mod:`~viewer.windowlogic.whatif`: what-if states, the readout rows and the fit at a state
+- :mod:`~viewer.windowlogic.readouts`: the readout table's lines for the focus
+- :mod:`~viewer.windowlogic.inspection`: the lines and words of an inspection result
+- :mod:`~viewer.windowlogic.banner`: the verdict banner's words and colour role
+- :mod:`~viewer.windowlogic.points`: the points files an inspection or a report reads
+- :mod:`~viewer.windowlogic.export`: the ``matezone report`` command the window runs
+"""

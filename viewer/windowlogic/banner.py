@@ -1,0 +1,81 @@
+"""The verdict banner's content, without Qt: for a mate ASSEMBLES / INTERFERES at the sizes set
+(geom's fit predicate) beside the worst case; for a fastener its position tolerance; for an
+inspection geom's one part verdict (``InspectionResult.verdict``), word for word as the PDF shows
+it. The colour comes from the verdict role (:data:`viewer.windowlogic.looks.ROLE_LOOK`)."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from html import escape
+
+from .inspection import decision_rule, other_axis_basis
+from .whatif import mate_verdict_at
+
+
+@dataclass(frozen=True)
+class Banner:
+    """``state``: "assembles" / "interferes" for a mate, the part verdict's role for an
+    inspection, "none" otherwise. ``role`` picks the look; ``head`` is plain text shown after the
+    role's mark when ``mark``; ``detail`` is rich text. ``tip``: the banner's tooltip, None to
+    leave it as it is."""
+
+    state: str
+    role: str
+    head: str
+    detail: str
+    mark: bool = True
+    tip: str | None = ""
+
+
+def mate_banner(res, scene, mi: int | None, states) -> Banner:
+    """The fit of mate ``mi`` at ``states``; None: the feature is in no mate."""
+    if mi is None:
+        return Banner("none", "none", "NO MATE: fit not evaluated",
+                      "This feature is in no mate. Add a mate to judge a fit.", mark=False)
+    v = mate_verdict_at(res, mi, states)
+    m = scene.mates[mi]
+    return Banner("assembles" if v.assembles else "interferes", "ok" if v.assembles else "fail", v.headline,
+                  f"Mate {mi + 1} ({m.hole} ← {m.pin}). Worst case: {v.worst_case}.<br>"
+                  f"<span style='font-family:monospace'>{escape(v.formula)}</span>")
+
+
+def fastener_banner(res, scene, fid: str) -> Banner:
+    """A fastener table: its position tolerance and formula; no fit to judge."""
+    fr = res.fasteners[fid]
+    u, st = scene.units, scene.standard
+    return Banner("none", "none", f"FASTENER {fid} ({fr.fastener.kind}): position tolerance "
+                                  f"⌀{u.fmt(fr.position_tolerance.value)} {u.value}",
+                  f"<span style='font-family:monospace'>{escape(fr.position_tolerance.formula(u, st))}</span>"
+                  "<br>No fit to judge here: the tolerance is what the fastener pattern allows.", mark=False)
+
+
+def inspection_banner(fid: str, res, units) -> Banner:
+    """geom's part verdict of the inspection ``res`` of feature ``fid`` (None: no result yet)."""
+    if res is None:
+        return Banner("none", "none", f"INSPECTION of {fid}: no result yet",
+                      "Load a CSV of measured points for it (File > Load measured points…).", mark=False, tip=None)
+    v = res.verdict
+    rule = decision_rule(res, units, "no uncertainty U given: measured values alone")
+    lines = [f"Measured {escape(res.feature.kind.value)} {escape(fid)}; {rule}."]
+    if v is None:  # geom gave no overall verdict: nothing claims one
+        return Banner("none", "none", f"INSPECTION of {fid}: NOT EVALUATED", "<br>".join(lines), tip=None)
+    lines.append("<b>Why:</b> " + escape(v.why))
+    if res.axis is not None:
+        gov = f"<b>Governing axis reading:</b> {escape(res.axis.basis)}"
+        other = other_axis_basis(res)
+        if other:
+            gov += f" (the {escape(other)} reading is shown and does not govern)"
+        lines.append(gov)  # the reason (res.axis_governs) is in the tooltip and the readout table
+    lines += ["<b>Note:</b> " + escape(n) for n in v.notes]
+    return Banner(v.role, v.role, v.headline, "<br>".join(lines), tip=res.axis_governs or "")
+
+
+def banner(res, scene, states, focus_inspection: str | None, inspection, fastener: str | None,
+           mate: int | None) -> Banner:
+    """The banner for the focus: an inspection (of feature ``focus_inspection``, its result
+    ``inspection``), else a fastener, else the mate ``mate`` (None: no mate to judge)."""
+    if focus_inspection is not None:
+        return inspection_banner(focus_inspection, inspection, scene.units)
+    if fastener is not None:
+        return fastener_banner(res, scene, fastener)
+    return mate_banner(res, scene, mate, states)

@@ -1,0 +1,125 @@
+"""The readout table's lines, without Qt: quantity, value and formula for the focus. For a mate
+or feature: each feature at its what-if state, then its limits and worst-case boundaries; the
+mate's worst case; the fastener tables. (An inspection's lines are in
+:mod:`viewer.windowlogic.inspection`.) Every number and formula comes from geom.
+
+A :class:`Table` collects the lines and records what each value means, ``(feature id, quantity)
+-> value``, so that tests and the window can ask for a quantity by name.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass
+
+from geom.analysis import SceneResult, mate_formula, term
+from geom.readout import feature_rows
+
+from .whatif import whatif_rows
+
+FEATURE_HEAD = "#e3f2fd"  # background of a block's heading: a feature (or inspection) at its state
+FIXED_HEAD = "#eceff1"  # background of a heading of values that do not move with the what-if
+CONSTANT = "#fff8e1"  # background of a what-if row that does not change with the produced size
+
+
+def _same(text: str) -> str:
+    return text
+
+
+@dataclass(frozen=True)
+class Line:
+    """One row of the table: its three cells, its look (bold, background, text colour of the
+    first two cells) and its tooltip ("" for the cell's own text)."""
+
+    cells: tuple[str, str, str]
+    look: tuple = (False, None, None)
+    tip: str = ""
+
+
+class Table:
+    """Lines being collected. ``ui`` turns free text into what the window can draw (symbols no
+    installed font has become words, :func:`viewer.app.glyphs.ui_text`); the identity by default."""
+
+    def __init__(self, ui: Callable[[str], str] = _same):
+        self.lines: list[Line] = []
+        self.values: dict[tuple[str, str], str] = {}  # (feature id, quantity) -> value shown
+        self.ui = ui
+
+    def add(self, cells, bold=False, bg: str | None = None, tip: str = "", fg: str | None = None) -> None:
+        self.lines.append(Line(tuple(cells), (bold, bg, fg), tip))
+
+    def row(self, fid: str, quantity: str, value: str, formula: str = "", **kw) -> None:
+        """A line whose value is recorded under ``(fid, quantity)``."""
+        self.values[(fid, quantity)] = value
+        self.add((quantity, value, formula), **kw)
+
+
+def fixed_rows(res: SceneResult, fid: str, units, standard) -> list:
+    """geom's rows for a feature's limits and boundaries (they do not move with the what-if)."""
+    return list(feature_rows(res.features[fid], units, standard))
+
+
+def feature_lines(t: Table, res: SceneResult, fid: str, state, units, standard, fixed=fixed_rows) -> None:
+    """Feature ``fid`` at its what-if ``state``, then its limits and worst-case boundaries."""
+    r = res.features[fid]
+    t.add((f"{r.feature.kind.value} {fid} at the sizes set", "", ""), bold=True, bg=FEATURE_HEAD)
+    for row in whatif_rows(res, fid, state):
+        t.values[(fid, row.quantity)] = row.value
+        t.add((row.quantity, row.value, row.formula), bg=CONSTANT if row.constant else None,
+              tip="Does not change with the produced size" if row.constant else "")
+    t.add((f"{fid}: limits and worst-case boundaries", "", ""), bold=True, bg=FIXED_HEAD)
+    for q, v, fml in fixed(res, fid, units, standard):
+        t.values[(fid, q)] = v
+        t.add((q, t.ui(v), t.ui(fml)))
+    for n in r.notes:
+        t.add(("note", "", n))
+
+
+def mate_lines(t: Table, res: SceneResult, mi: int, units, standard) -> None:
+    """The worst case of mate ``mi``: clearance with the tolerances and from the sizes alone."""
+    u, st = units, standard
+    mr = res.mates[mi]
+    t.add((f"mate {mi + 1}: worst case", "", ""), bold=True, bg=FIXED_HEAD)
+    t.add(("worst-case clearance", u.fmt(mr.clearance_min, signed=True), mate_formula(mr, u, st)))
+    t.add(("clearance from sizes alone", u.fmt(mr.clearance_min_size, signed=True),
+           f"hole {term('mmc', st)[0]} - pin {term('mmc', st)[0]}"))
+    t.add(("loosest fit from sizes", u.fmt(mr.clearance_max, signed=True),
+           f"hole {term('lmc', st)[0]} - pin {term('lmc', st)[0]}"))
+    for a in mr.assumptions:
+        t.add(("assumes", "", a))
+
+
+def fastener_lines(t: Table, res: SceneResult, units, standard, only: str | None = None) -> None:
+    """The position tolerance of every fastener table, or of ``only`` with its inputs too."""
+    u, st = units, standard
+    for fid, fr in res.fasteners.items():
+        if only is not None and fid != only:
+            continue
+        fa = fr.fastener
+        t.add((f"fastener {fid} ({fa.kind})", "", ""), bold=True, bg=FIXED_HEAD)
+        if only is not None:  # the fastener looked at: its inputs too
+            t.row(fid, "fastener F (at its largest size)", u.fmt(fa.fastener), "")
+            t.row(fid, "clearance hole H (at its smallest size)", u.fmt(fa.hole), "")
+            if fa.projection is not None:
+                t.row(fid, "projection P", u.fmt(fa.projection), "")
+            if fa.thread_depth is not None:
+                t.row(fid, "thread depth D", u.fmt(fa.thread_depth), "")
+        t.values[(fid, "position tolerance")] = u.fmt(fr.position_tolerance.value)
+        t.add(("position tolerance", u.fmt(fr.position_tolerance.value), fr.position_tolerance.formula(u, st)))
+        if fr.position_tolerance_unprojected is not None:
+            t.add(("without a projected zone", u.fmt(fr.position_tolerance_unprojected.value),
+                   fr.position_tolerance_unprojected.formula(u, st)))
+
+
+def focus_table(res: SceneResult, scene, states, features, mate: int | None, fastener: str | None,
+                ui: Callable[[str], str] = _same, fixed=fixed_rows) -> Table:
+    """The lines for a mate, feature or fastener focus: ``features`` at their ``states``, the
+    mate ``mate``'s worst case, then the fastener ``fastener`` (every fastener when None)."""
+    u, st = scene.units, scene.standard
+    t = Table(ui)
+    for fid in features:
+        feature_lines(t, res, fid, states[fid], u, st, fixed)
+    if mate is not None:
+        mate_lines(t, res, mate, u, st)
+    fastener_lines(t, res, u, st, fastener)
+    return t

@@ -1,0 +1,142 @@
+"""The what-if: each feature's state (produced size, share of the tolerance used, tilt direction),
+the readout rows of a feature at its state, and the fit of a mate at the states set. Every number
+comes from geom; here it is only put into words."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from geom import boundaries as B
+from geom.analysis import (
+    Derived,
+    SceneResult,
+    clearance_at,
+    fits,
+    mate_formula,
+    mate_verdict,
+    term,
+    tolerance_allowed_derived,
+)
+from geom.model import Feature, Material, Scene
+
+from .fields import plain
+
+# ---------------------------------------------------------------- states
+
+
+def moved_state(f: Feature, old: B.FeatureState, size: float | None = None, share: float | None = None,
+                direction_deg: float | None = None) -> B.FeatureState:
+    """``old`` with the values given changed: size clamped to the feature's limits, share to
+    0..1, direction taken modulo 360 degrees."""
+    lo, hi = f.limits
+    return B.FeatureState(
+        old.size if size is None else min(max(float(size), lo), hi),
+        old.share if share is None else min(max(float(share), 0.0), 1.0),
+        old.direction_deg if direction_deg is None else float(direction_deg) % 360.0,
+    )
+
+
+def settled_states(scene: Scene, old: dict[str, B.FeatureState]) -> dict[str, B.FeatureState]:
+    """A state for every feature of ``scene``: its state in ``old`` while the size is still within
+    its limits; at MMC with the share and direction kept when not; the worst case
+    (:func:`geom.boundaries.worst_case_state`: a pin in a mate tilts opposite to the hole, the
+    default the 2D views and the report use) for a feature ``old`` does not hold."""
+    in_mate = {fid for m in scene.mates for fid in (m.hole, m.pin)}
+    states = {}
+    for f in scene.features:
+        st = old.get(f.id)
+        lo, hi = f.limits
+        if st is not None and lo <= st.size <= hi:
+            states[f.id] = st
+        elif st is not None:
+            states[f.id] = B.FeatureState(f.mmc, st.share, st.direction_deg)
+        else:
+            states[f.id] = B.worst_case_state(f, f.id in in_mate)
+    return states
+
+
+# ---------------------------------------------------------------- readout rows
+
+
+@dataclass(frozen=True)
+class Row:
+    quantity: str
+    value: str
+    formula: str
+    constant: bool = False  # does not depend on the what-if state
+
+
+def whatif_rows(res: SceneResult, fid: str, state: B.FeatureState) -> list[Row]:
+    """Readouts of one feature at a what-if state; every number comes from geom."""
+    sc = res.scene
+    u, st = sc.units, sc.standard
+    r = res.features[fid]
+    f = r.feature
+    tol = f.tolerance
+    mmc_abbr, lmc_abbr = term("mmc", st)[0], term("lmc", st)[0]
+    mmc_s, lmc_s = u.fmt_cmp(f.mmc, f.lmc)  # compared with each other: never printed equal
+    rows = [Row("produced size", u.fmt(state.size), f"between {mmc_abbr} {mmc_s} and {lmc_abbr} {lmc_s}")]
+    b = B.bonus(f, state.size)
+    bname = term("bonus", st)[0]
+    if tol is None:
+        rows.append(Row(bname, u.fmt(b), "no geometric tolerance"))
+    elif tol.material is Material.RFS:
+        rows.append(Row(bname, u.fmt(b), f"{bname} = 0 ({term('rfs', st)[1]})"))
+    else:
+        ref_key = "mmc" if tol.material is Material.MMC else "lmc"
+        ref = f.mmc if tol.material is Material.MMC else f.lmc
+        rows.append(Row(f"{bname} at this size", u.fmt(b),
+                        Derived("bonus", b, "|size - {" + ref_key + "}|", "|{} - {}|",
+                                (state.size, ref)).formula(u, st)))
+    ta = B.tolerance_allowed(f, state.size)
+    if tol is not None:
+        rows.append(Row("tolerance allowed at this size", u.fmt(ta),
+                        tolerance_allowed_derived(f, b).formula(u, st)))
+        used = state.share * ta
+        rows.append(Row("tolerance used", u.fmt(used),
+                        f"{plain(state.share * 100)} % of {u.fmt(ta)}, tilted toward "
+                        f"{plain(state.direction_deg)} deg"))
+        tilt = B.tilt_angle_deg(f, used)
+        if tilt is not None:
+            rows.append(Row("axis tilt", f"{tilt:.4f} deg",
+                            f"atan(used / L) = atan({u.fmt(used)} / {u.fmt(B.tilt_length(f))})"))
+    eff = B.effective_size(f, state)
+    sign = "-" if f.kind.value == "hole" else "+"
+    what = "clear opening" if f.kind.value == "hole" else "swept envelope"
+    rows.append(Row(f"{what} normal to A", u.fmt(eff),
+                    f"size {sign} used = {u.fmt(state.size)} {sign} {u.fmt(state.share * ta)} = {u.fmt(eff)}"))
+    vc = r.virtual_condition
+    if vc.value is not None:
+        rows.append(Row(f"{term(vc.key, st)[1]} (constant)", u.fmt(vc.value), vc.formula(u, st), constant=True))
+        if tol.material is Material.MMC:
+            # with all of the tolerance used, the boundary presented equals the VC at every size
+            gap = abs(eff - vc.value)
+            rows.append(Row(f"room left to {vc.abbr(st)}", u.fmt(gap),
+                            f"|{what} - {vc.abbr(st)}| = |{u.fmt(eff)} - {u.fmt(vc.value)}| = {u.fmt(gap)}"))
+    return rows
+
+
+# ---------------------------------------------------------------- the fit at the states set
+
+
+@dataclass(frozen=True)
+class Verdict:
+    assembles: bool
+    headline: str  # "ASSEMBLES ..." / "INTERFERES by ..."
+    worst_case: str  # geom's worst-case verdict sentence
+    formula: str
+    whatif_clearance: float
+
+
+def mate_verdict_at(res: SceneResult, mate_index: int, states: dict[str, B.FeatureState]) -> Verdict:
+    """The fit of mate ``mate_index`` at the what-if ``states`` (geom's fit predicate), beside
+    geom's worst-case verdict and formula."""
+    sc = res.scene
+    u = sc.units
+    m = res.mates[mate_index]
+    hole, pin = sc.feature(m.hole), sc.feature(m.pin)
+    c = clearance_at(hole, pin, states[m.hole], states[m.pin])
+    ok = fits(c)  # geom's one fit predicate (line-to-line included)
+    headline = mate_verdict(c, ok, u).replace(" in the worst case", " at the sizes set")
+    return Verdict(ok, headline, mate_verdict(m.clearance_min, m.assembles, u),
+                   mate_formula(m, u, sc.standard), c)
