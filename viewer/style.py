@@ -1,5 +1,5 @@
-"""matezone's colour scheme, shared by the 3D scene (viewer/scene3d.py), the 2D figures
-(viewer/figures.py) and the report.
+"""matezone's colour scheme, shared by the 3D scene (viewer/scene3d/), the 2D figures
+(viewer/figures/) and the report.
 
 Designed for a white page and a projector: every role has its own luminance as well as its own
 hue, so the pictures still read in greyscale print (relative luminance, sRGB, in brackets; the
