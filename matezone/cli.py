@@ -106,6 +106,9 @@ def build_parser() -> argparse.ArgumentParser:
                    help="measured points of a feature (CSV x,y,z[,section]); adds or replaces its inspection page")
     r.add_argument("--bonus-basis", default="unrelated", metavar="unrelated|related",
                    help="envelope the inspection bonus is taken from (default: unrelated)")
+    r.add_argument("--animate", action="append", default=[], metavar="gif|mp4",
+                   help="also write a teaching sweep (the hole's size from MMC to LMC at one locked scale) "
+                        "per mate as an animated GIF or MP4; repeat for both")
     r.set_defaults(func=cmd_report)
 
     i = sub.add_parser("inspect", help="judge a produced part from inspection values or CMM points")

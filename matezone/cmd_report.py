@@ -1,5 +1,5 @@
 """``matezone report SCENE --out DIR [--size ID=VALUE ...] [--view NAME] [--points ID=CSV ...]
-[--bonus-basis unrelated|related]``: write the pictures, the PDF evidence report and results.json
+[--bonus-basis unrelated|related] [--animate gif|mp4]``: write the pictures, the PDF evidence report and results.json
 without a display. Every feature with ``[feature.measured]`` data (or ``--points``) gets an
 inspection page; fasteners get a page of their own."""
 
@@ -95,6 +95,13 @@ def run(args, load) -> int:
 
     if args.view not in VIEWS:
         raise UserError(f"--view {args.view!r}: expected one of {', '.join(VIEWS)}")
+    animate = []
+    for fmt in getattr(args, "animate", None) or []:
+        f = str(fmt).strip().lower().lstrip(".")
+        if f not in ("gif", "mp4"):
+            raise UserError(f"--animate {fmt!r}: expected gif or mp4")
+        if f".{f}" not in animate:
+            animate.append(f".{f}")
     inspections = inspect_all(scene, points, basis)
     from viewer.reportdir import ReportDirError, check_target, write_report_atomic
 
@@ -117,7 +124,8 @@ def run(args, load) -> int:
         previous = None
     try:
         written = write_report_atomic(res, out, sizes=sizes, view=args.view,
-                                      progress=lambda s: print(s, flush=True), inspections=inspections)
+                                      progress=lambda s: print(s, flush=True), inspections=inspections,
+                                      animate=tuple(animate))
     except ReportDirError as e:
         raise UserError(str(e)) from None
     except KeyboardInterrupt:

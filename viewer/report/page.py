@@ -14,7 +14,6 @@ from __future__ import annotations
 
 import textwrap
 from contextlib import contextmanager
-from pathlib import Path
 
 import numpy as np
 from matplotlib.figure import Figure
@@ -29,6 +28,7 @@ PAGE = (8.27, 11.69)  # A4 portrait, inches
 MARGIN = 0.4
 CONTENT_W = PAGE[0] - 2 * MARGIN  # width between the margins
 DISPOSITIONS = ("use-as-is", "rework", "repair", "scrap", "return to supplier")
+TITLE_ROW_H = 0.3  # inches, one row of the title block
 GREY = "#5A5F66"  # small labels in the title block (luminance ~0.11)
 SHADE = "#EEF0F2"  # every other table row
 
@@ -109,6 +109,37 @@ class _DryPage(_Page):
 # ------------------------------------------------------------------------ start and end of a page
 
 
+def title_block_rows(rep: dict, char: str, tol: str, units_standard: str) -> list[list[tuple]]:
+    """The title block's rows of (label, value, width in inches or None for the rest of the row).
+
+    Identity, lot and counts, requirement and characteristic rows are always there (blank boxes
+    to fill by hand when the scene leaves them out); the method/equipment row and the
+    disposition/containment row appear when any of their fields is given; remarks last."""
+    g = rep.get
+    rows = [
+        [("report number", g("report_number"), 1.3), ("drawing number", g("drawing"), 1.3),
+         ("sheet", g("sheet"), 0.5), ("revision", g("revision"), 0.55), ("part number", g("part"), 1.35),
+         ("part name", g("part_name"), None)],
+        [("customer", g("customer"), 1.8), ("order", g("order"), 1.3), ("supplier", g("supplier"), 1.6),
+         ("lot", g("lot"), 1.1), ("serial", g("serial"), None)],
+        [("lot quantity", g("quantity"), 0.85), ("inspected", g("quantity_inspected"), 0.8),
+         ("rejected", g("quantity_rejected"), 0.75), ("date", g("date"), 1.0), ("inspector", g("inspector"), 1.6),
+         ("prepared by", g("prepared_by"), None)],
+        [("requirement (as stated)", g("requirement"), 4.6), ("drawing zone", g("drawing_zone"), 0.9),
+         ("units / standard", units_standard, None)],
+        [("characteristic", char, 2.45), ("tolerance (feature control frame)", tol, 2.6),
+         ("how it was found", g("found_by"), None)],
+    ]
+    if any(g(k) for k in ("method", "equipment", "calibration")):
+        rows.append([("inspection method", g("method"), 2.45), ("equipment", g("equipment"), 2.6),
+                     ("calibration reference", g("calibration"), None)])
+    if any(g(k) for k in ("disposition_by", "containment", "corrective_action")):
+        rows.append([("disposition authority", g("disposition_by"), 2.0), ("containment", g("containment"), 3.05),
+                     ("corrective action ref.", g("corrective_action"), None)])
+    rows.append([("remarks", g("remarks"), None)])
+    return rows
+
+
 def _head(p: _Page, res: SceneResult, title: str, subtitle: str, char: str, tol: str, page_no: int,
           pages: int) -> float:
     """Page header and the title block (from the scene's ``[report]`` table); returns the y below it."""
@@ -123,21 +154,10 @@ def _head(p: _Page, res: SceneResult, title: str, subtitle: str, char: str, tol:
     p.text(xs, 0.37, subtitle, fontsize=min(8.5, max(6.0, room * 72 / (0.53 * max(len(subtitle), 1)))))
     p.text(x0 + W, 0.34, f"report no. {rep.get('report_number') or '—'}", fontsize=9, ha="right", weight="bold")
     p.text(x0 + W, 0.55, f"page {page_no} of {pages}", fontsize=7.5, ha="right")
-    p.text(x0, 0.58, sc.title + (f"   ({Path(sc.source).name})" if sc.source else ""), fontsize=8.5)
+    p.text(x0, 0.58, sc.title, fontsize=8.5)  # the scene's own title; its file name is not evidence
     # ---------------------------------------------------------------- title block
-    y, h = 0.82, 0.32
-    rows = [
-        [("report number", rep.get("report_number"), 1.55), ("part number", rep.get("part"), 1.45),
-         ("revision", rep.get("revision"), 0.62), ("part name", rep.get("part_name"), 2.15),
-         ("supplier", rep.get("supplier"), None)],
-        [("lot", rep.get("lot"), 1.55), ("serial", rep.get("serial"), 1.45), ("quantity", rep.get("quantity"), 0.62),
-         ("date", rep.get("date"), 1.05), ("prepared by", rep.get("prepared_by"), None)],
-        [("requirement (as stated)", rep.get("requirement"), 4.6), ("drawing zone", rep.get("drawing_zone"), 0.9),
-         ("units / standard", f"{u.value} / {std.value.upper()}", None)],
-        [("characteristic", char, 2.45), ("tolerance (feature control frame)", tol, 2.6),
-         ("how it was found", rep.get("found_by"), None)],
-        [("remarks", rep.get("remarks"), None)],
-    ]
+    y, h = 0.82, TITLE_ROW_H
+    rows = title_block_rows(rep, char, tol, f"{u.value} / {std.value.upper()}")
     for row in rows:
         x = x0
         for label, value, w in row:

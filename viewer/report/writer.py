@@ -73,8 +73,16 @@ def inspection_images(scene3d_obj, view: str) -> list[tuple[str, np.ndarray]]:
 # ------------------------------------------------------------------------------------ writing
 
 
+def _sweepable(res: SceneResult, item) -> bool:
+    """Whether a page subject has a size to sweep: the mate's hole, or the lone feature."""
+    fid = res.scene.mates[item.index].hole if item.index is not None else item.feature_id
+    f = res.scene.feature(fid)
+    return f.lmc != f.mmc
+
+
 def write_report(res: SceneResult, out_dir, sizes: dict[str, float] | None = None, view: str = "iso",
-                 progress: Progress | None = None, inspections: dict | None = None) -> list[Path]:
+                 progress: Progress | None = None, inspections: dict | None = None,
+                 animate: tuple[str, ...] = ()) -> list[Path]:
     """Write every file of the report into ``out_dir``; returns the paths written.
 
     ``sizes``: produced sizes (feature id -> size) for the what-if pictures; the rest stays at the
@@ -82,6 +90,8 @@ def write_report(res: SceneResult, out_dir, sizes: dict[str, float] | None = Non
     ``inspections``: feature id -> :class:`geom.inspect.InspectionResult`, one inspection page
     each (first in the PDF); None inspects every feature with ``[feature.measured]`` data.
     Fasteners of the scene get their own page(s) at the end.
+    ``animate``: formats (".gif", ".mp4") of a teaching sweep per page subject whose moving
+    feature has a size range (:mod:`viewer.animate`: MMC to LMC at one locked scale).
     """
     from viewer import scene3d
 
@@ -92,7 +102,8 @@ def write_report(res: SceneResult, out_dir, sizes: dict[str, float] | None = Non
         inspections = scene_inspections(res.scene)
     fids = list(res.fasteners)
     fastener_pages = [fids[i:i + FASTENERS_PER_PAGE] for i in range(0, len(fids), FASTENERS_PER_PAGE)]
-    steps = len(items) * (1 + len(VIEW_FILES)) + len(inspections) + len(fids) + 2
+    sweeps = [(item, fmt) for item in items for fmt in animate if _sweepable(res, item)]
+    steps = len(items) * (1 + len(VIEW_FILES)) + len(inspections) + len(fids) + 2 + len(sweeps)
     n = 0
     written: list[Path] = []
 
@@ -125,6 +136,13 @@ def write_report(res: SceneResult, out_dir, sizes: dict[str, float] | None = Non
                 F.save_figure(fig, q)
             written += paths
             say(f"{item.label}: {name} view", paths)
+    for item, fmt in sweeps:
+        from viewer.animate import sweep_animation
+
+        q = out / f"{item.file_key}_sweep{fmt}"
+        sweep_animation(res, item.index if item.index is not None else item.feature_id, q, view=view)
+        written.append(q)
+        say(f"{item.label}: size sweep MMC to LMC", [q])
     insp_pages = {}
     for fid, insp in inspections.items():
         s3 = scene3d.build_inspection_scene(res, insp)
