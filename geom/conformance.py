@@ -64,6 +64,7 @@ class Check:
     uncertainty: float | None = None
     inside: bool | None = None
     missing: tuple[str, ...] = ()  # parts of a combined check that could not be evaluated
+    parts: tuple["Check", ...] = ()  # the checks a combined check is made of
 
     @property
     def conforms(self) -> bool | None:
@@ -141,7 +142,7 @@ def decide(name: str, values, low: float | None, high: float | None, U: float | 
 def with_detail(c: Check, detail: str, name: str | None = None) -> Check:
     """The same check with another detail text (and name)."""
     return Check(name or c.name, c.outcome, detail, c.values, c.low, c.high, c.evaluated, c.uncertainty,
-                 c.inside, c.missing)
+                 c.inside, c.missing, c.parts)
 
 
 def combine(name: str, checks, required: bool = True) -> Check:
@@ -162,7 +163,28 @@ def combine(name: str, checks, required: bool = True) -> Check:
     else:
         out = Outcome.NOT_PROVEN
     missing = tuple(c.name for c in checks if not c.evaluated) if required else ()
-    return Check(name, out, detail, (), None, None, True, U, inside, missing)
+    return Check(name, out, detail, (), None, None, True, U, inside, missing, tuple(checks))
+
+
+def deviation(check: Check) -> float | None:
+    """How far the worst measured value lies beyond the specification limit: positive beyond it
+    (the amount of the nonconformance), negative inside it (the margin left), None where the
+    check has no values or no limit (a combined check: see its ``parts``).
+
+    >>> round(deviation(decide("axis", [0.021], None, 0.018, None)), 6)
+    0.003
+    >>> round(deviation(decide("size", [8.004, 8.019], 8.0, 8.022, None)), 6)
+    -0.003
+    """
+    if not check.values or (check.low is None and check.high is None):
+        return None
+    worst = -math.inf
+    for v in check.values:
+        if check.high is not None:
+            worst = max(worst, v - check.high)
+        if check.low is not None:
+            worst = max(worst, check.low - v)
+    return worst
 
 
 WORDS = {

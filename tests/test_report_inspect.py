@@ -146,9 +146,17 @@ def test_inspection_page_carries_the_numbers_and_verdicts(cap_pages, cap_inspect
     assert "PART CONFORMS" in text and _squash(insp.verdict.headline) in flat
     assert _squash(insp.verdict.why) in flat
     # every reading with its word (geom.conformance.verdict_word) and its outcome text
+    # and the nonconformance report's three cells: required, actual, deviation
+    from viewer.report.readings import required_actual_deviation
+
     for c in (insp.size_check, insp.axis_check, insp.surface_check, insp.other_axis_check):
-        assert _squash(c.detail) in flat, c.detail
+        for cell in required_actual_deviation(c, u):
+            assert _squash(cell) in flat, cell
         assert _squash(c.outcome_text) in flat
+    # by hand: the median line 0.021 against the 0.018 allowed is 0.021 - 0.018 = 0.003 beyond;
+    # the surface 7.990 against VC 7.985 leaves 0.005 (the scene's demo numbers, hand arithmetic)
+    assert _squash("<= 0.018 0.021 +0.003 beyond") in flat
+    assert _squash(">= 7.985 7.990 margin 0.005") in flat
     assert _squash("size (governs): CONFORMS") in flat and _squash("surface (governs): CONFORMS") in flat
     assert _squash("axis (feature axis): CONFORMS") in flat
     assert _squash("axis (median line) (does not govern): DOES NOT CONFORM") in flat
@@ -435,3 +443,28 @@ def test_fastener_only_scene_writes_the_fastener_page_and_json(tmp_path, std):
     # --size has nothing to act on: one clear message, exit 2
     code, _, err = _run("report", scene, "--out", tmp_path / "bad", "--size", "x=6.0")
     assert code == 2 and "no features" in err and "Traceback" not in err
+
+
+def test_title_block_carries_the_nonconformance_fields_and_no_file_name(cap_pages):
+    # the demo scene's [report] table (scenes/cap_bore_inspection.toml): invented demo data
+    text = cap_pages[0]
+    for value in ("DWG-GX-220-014", "2 of 3", "Harlund Drive Systems", "PO 55-31907", "T. Okafor",
+                  "CAL-CMM-03, due 2027-04", "CA-2026-041", "MRB, design authority GX-220"):
+        assert _squash(value) in _squash(text), value
+    for label in ("DRAWING NUMBER", "INSPECTED", "REJECTED", "CALIBRATION REFERENCE", "DISPOSITION AUTHORITY",
+                  "CONTAINMENT", "CORRECTIVE ACTION REF."):
+        assert label in text, label
+    assert ".toml" not in text  # the header names the part, not the scene file
+
+
+def test_title_block_rows_without_report_fields_are_the_fixed_blank_form():
+    from viewer.report.page import CONTENT_W, title_block_rows
+
+    rows = title_block_rows({}, "position", "⌖ ⌀0.1 (M) | A | B", "mm / ASME")
+    assert [r[0][0] for r in rows] == ["report number", "customer", "quantity", "requirement (as stated)",
+                                       "characteristic", "remarks"]
+    assert all(v is None for r in rows for lbl, v, _ in r if lbl not in ("characteristic", "tolerance (feature control frame)", "units / standard"))
+    for r in rows:  # fixed widths leave room for the last box of each row
+        assert sum(w for *_, w in r if w is not None) < CONTENT_W - 0.8
+    more = title_block_rows({"equipment": "bore gauge", "containment": "lot held"}, "", "", "")
+    assert [r[0][0] for r in more][-3:] == ["inspection method", "disposition authority", "remarks"]

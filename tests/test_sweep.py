@@ -125,3 +125,29 @@ def test_bad_file_name_is_refused_before_rendering(gearbox, tmp_path):
     with pytest.raises(AnimationError, match=r"expected a file name ending in \.gif or \.mp4"):
         sweep_animation(gearbox, 0, tmp_path / "lesson.avi")
     assert not list(tmp_path.iterdir())
+
+
+def test_report_animate_writes_the_sweep_inside_the_report(tmp_path, capsys):
+    imageio = pytest.importorskip("imageio.v2")
+    from matezone.cli import main
+
+    out = tmp_path / "rep"
+    assert main(["report", str(ROOT / "scenes" / "gearbox_endcap_dowel.toml"), "--out", str(out),
+                 "--animate", "gif"]) == 0
+    gifs = sorted(out.glob("*_sweep.gif"))
+    assert [g.name for g in gifs] == ["mate_cap-bore__dowel_sweep.gif"]
+    assert len(imageio.mimread(gifs[0])) == 25  # the default sweep: 25 sizes from MMC to LMC
+    import json
+
+    assert gifs[0].name in json.loads((out / ".matezone-report.json").read_text())["files"]
+    assert "size sweep MMC to LMC" in capsys.readouterr().out
+
+
+def test_report_animate_refuses_an_unknown_format(tmp_path, capsys):
+    from matezone.cli import main
+
+    code = main(["report", str(ROOT / "scenes" / "gearbox_endcap_dowel.toml"), "--out", str(tmp_path / "r"),
+                 "--animate", "avi"])
+    assert code == 2
+    assert "--animate 'avi': expected gif or mp4" in capsys.readouterr().err
+    assert not (tmp_path / "r").exists()

@@ -48,6 +48,7 @@ from .readings import (
     axis_readings,
     condensed_sections,
     reading_rows,
+    required_actual_deviation,
 )
 
 DISAGREE_TITLE = "NOTE: READINGS THAT DISAGREE"
@@ -195,15 +196,16 @@ def _inspection_lower(p: _Page, insp, x0: float, y: float, W: float, fs: float) 
     rl = _wrap(rule, W - 0.75, fs * 0.9)
     p.text(x0 + 0.75, y + 0.01, "\n".join(rl), fontsize=fs * 0.9, color=GREY, linespacing=1.15)
     y += max(0.14, 0.09 * len(rl) + 0.04)
-    rows = [("reading", "what is checked", "measured against the limit", "verdict", "outcome")]
+    rows = [("reading", "what is checked", "required", "actual", "deviation", "verdict", "outcome")]
     cols = [None]
     for label, role, c, meaning in reading_rows(insp):
         word, r = verdict_word(c)
         cc = S.ROLE_COLOUR[r]
-        rows.append((label + _ROLE_TAG[role], meaning, c.detail, word, c.outcome_text))
-        cols.append((GREY if role == "does not govern" else None, None, None, cc, cc))
-    widths = [0.95, 2.25, 2.05, 1.0, W - 6.25]
-    y = _wrapped_table(p, x0, y, widths, rows, fs, cols)
+        req, act, dev = required_actual_deviation(c, u) if c.evaluated else ("—", c.detail, "—")
+        rows.append((label + _ROLE_TAG[role], meaning, req, act, dev, word, c.outcome_text))
+        cols.append((GREY if role == "does not govern" else None, None, None, None, cc, cc, cc))
+    widths = [0.95, 1.85, 1.0, 1.0, 0.95, 1.0, W - 6.75]
+    y = _wrapped_table(p, x0, y, widths, rows, fs, cols, bold=(0, 5))
     _, _, notes, why = _headline(insp)
     if why:
         wl = _wrap(f"What governs the verdict: {why}.", W, fs)

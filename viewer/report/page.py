@@ -122,7 +122,7 @@ def title_block_rows(rep: dict, char: str, tol: str, units_standard: str) -> lis
          ("part name", g("part_name"), None)],
         [("customer", g("customer"), 1.8), ("order", g("order"), 1.3), ("supplier", g("supplier"), 1.6),
          ("lot", g("lot"), 1.1), ("serial", g("serial"), None)],
-        [("lot quantity", g("quantity"), 0.85), ("inspected", g("quantity_inspected"), 0.8),
+        [("quantity", g("quantity"), 0.85), ("inspected", g("quantity_inspected"), 0.8),
          ("rejected", g("quantity_rejected"), 0.75), ("date", g("date"), 1.0), ("inspector", g("inspector"), 1.6),
          ("prepared by", g("prepared_by"), None)],
         [("requirement (as stated)", g("requirement"), 4.6), ("drawing zone", g("drawing_zone"), 0.9),

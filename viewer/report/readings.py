@@ -15,6 +15,7 @@ from pathlib import Path
 import numpy as np
 
 from geom.analysis import term
+from geom.conformance import deviation
 from geom.model import Characteristic, Kind, Material
 
 INSPECTED_CHECKS = ("size", "axis", "surface")
@@ -125,6 +126,38 @@ def reading_rows(insp) -> list[tuple[str, str, object, str]]:
         rows.append((f"axis ({basis})", "does not govern", oc,
                      f"the {basis}, judged the same way"))
     return rows
+
+
+def required_actual_deviation(check, units) -> tuple[str, str, str]:
+    """The three cells a nonconformance report gives a characteristic: what the drawing requires
+    (the limits), what was found (the worst measured value, or the range of several), and the
+    deviation (how far beyond the limit, "+" amount; or the margin left inside it). A combined
+    check gives one entry per part, separated by "; ". Numbers compared are printed with the
+    digits that tell them apart (:meth:`geom.model.Units.fmt_cmp`).
+
+    >>> from geom.conformance import decide
+    >>> from geom.model import Units
+    >>> required_actual_deviation(decide("axis", [0.0183], None, 0.018, None), Units.MM)
+    ('<= 0.0180', '0.0183', '+0.0003 beyond')
+    """
+    if check.parts:
+        cells = [required_actual_deviation(c, units) for c in check.parts]
+        return tuple("; ".join(c[i] for c in cells if c[i] != "—") or "—" for i in range(3))
+    dev = deviation(check)
+    if dev is None:
+        return "—", "—", "—"
+    lims = [x for x in (check.low, check.high) if x is not None]
+    vals = check.values
+    shown = units.fmt_cmp(*vals, *lims, abs(dev))
+    sv, sl, sd = shown[: len(vals)], shown[len(vals): len(vals) + len(lims)], shown[-1]
+    if check.low is not None and check.high is not None:
+        req = f"{sl[0]} .. {sl[1]}"
+    else:
+        req = ("<= " if check.high is not None else ">= ") + sl[0]
+    actual = sv[0] if len(vals) == 1 else f"{sv[int(np.argmin(vals))]} .. {sv[int(np.argmax(vals))]}"
+    if dev > 0:
+        return req, actual, f"+{sd} beyond"
+    return req, actual, f"margin {sd}"
 
 
 def axis_readings(insp) -> list:
