@@ -41,6 +41,7 @@ from .page import (
     PAGE,
     SHADE,
     _disposition,
+    _DryPage,
     _Page,
     _wrap,
     evidence_page,
@@ -204,10 +205,10 @@ def build_page(res: SceneResult, item: Item, states, image3d: np.ndarray | None,
     title, subtitle = (DESIGN_TITLE, DESIGN_SUBTITLE) if design_intent else (FIT_TITLE, FIT_SUBTITLE)
     with evidence_page(res, title, subtitle, char, tol, page_no, pages) as (p, y):
         y = _verdict(p, res, item, y + 0.08, design_intent)
-        y = _pictures(p, res, item, states, image3d, view, y)
+        y = _pictures(p, res, item, states, image3d, view, y, _picture_height(p, res, item, states, y))
         y = _numbers(p, res, item, MARGIN, y, CONTENT_W)
         y = _effect(p, res, item, states, y)
-        _disposition(p, MARGIN, max(y, PAGE[1] - 1.12), CONTENT_W)
+        _disposition(p, MARGIN, max(y, DISPOSITION_TOP), CONTENT_W)
     return p.fig
 
 
@@ -243,12 +244,27 @@ def _verdict(p: _Page, res: SceneResult, item: Item, y: float, design_intent: bo
     return y + 0.36
 
 
-def _pictures(p: _Page, res: SceneResult, item: Item, states, image3d, view: str, y: float) -> float:
-    """The 3D picture and the three 2D views, 2 x 2."""
+PICTURE_H = (1.55, 2.0)  # inches of one picture slot: the least legible, and the full height
+DISPOSITION_TOP = PAGE[1] - 1.12  # the disposition block and the caution below it
+
+
+def _picture_height(p: _Page, res: SceneResult, item: Item, states, y: float) -> float:
+    """The height of a picture slot that leaves room for the numbers and the effect on fit above
+    the disposition block, measured with a dry run of both (a long title block or a long
+    derivation takes it from the pictures, never from the page foot)."""
+    dry = _DryPage(p.fig)
+    below = _effect(dry, res, item, states, _numbers(dry, res, item, MARGIN, 0.0, CONTENT_W))
+    room = DISPOSITION_TOP - y - below - 0.08 - 0.1  # 0.08 after the pictures, 0.1 between rows
+    return max(PICTURE_H[0], min(PICTURE_H[1], room / 2))
+
+
+def _pictures(p: _Page, res: SceneResult, item: Item, states, image3d, view: str, y: float,
+              gh: float = PICTURE_H[1]) -> float:
+    """The 3D picture and the three 2D views, 2 x 2, each slot ``gh`` inches high."""
     std = res.scene.standard
     fig = p.fig
     x0, W = MARGIN, CONTENT_W
-    gw, gh, gap = (W - 0.15) / 2, 2.0, 0.1
+    gw, gap = (W - 0.15) / 2, 0.1
     slots = [(x0, y), (x0 + gw + 0.15, y), (x0, y + gh + gap), (x0 + gw + 0.15, y + gh + gap)]
     fs2 = 5.4
     ax = fig.add_axes(p.rect(slots[0][0], slots[0][1] + 0.14, gw, gh - 0.42))
