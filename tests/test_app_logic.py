@@ -408,3 +408,58 @@ def test_report_command_and_its_messages(tmp_path):
     assert "'/out/r'" in export.not_written("/out/r")
     assert export.failure_message("matezone: cancelled, the previous report is unchanged", 130, True, "/o") == \
         "cancelled, the previous report is unchanged"  # the command's own words win
+
+
+# ---------------------------------------------------------------- the teaching sweep and pictures (issue 12)
+
+
+def test_sweep_target_is_the_mates_hole_the_feature_or_nothing():
+    from viewer.windowlogic.teaching import sweep_target
+
+    sc = load(GEARBOX)
+    m = sc.mates[0]
+    assert sweep_target(sc, ("mate", 0)) == (0, m.hole)  # a mate sweeps its hole
+    assert sweep_target(sc, ("feature", m.pin)) == (0, m.pin)  # a feature in a mate: within the mate
+    assert sweep_target(sc, ("inspection", m.hole)) is None
+    assert sweep_target(sc, ("none", None)) is None
+    lone = replace(sc, mates=())
+    assert sweep_target(lone, ("feature", m.hole)) == (m.hole, m.hole)
+
+
+def test_play_steps_run_from_mmc_to_lmc_at_the_whole_tolerance():
+    from viewer.windowlogic.teaching import play_steps
+
+    sc = load(GEARBOX)
+    fid, steps = play_steps(sc, ("mate", 0), 6)
+    f = sc.feature(fid)
+    # independent: six evenly spaced sizes, both limits included
+    assert [s.size for s in steps] == pytest.approx([f.mmc + (f.lmc - f.mmc) * i / 5 for i in range(6)])
+    assert steps[-1].size == f.lmc and all(s.state.share == 1.0 for s in steps)
+
+
+def test_default_export_names_and_the_sweep_job_refusing_a_bad_name(tmp_path, capsys):
+    from viewer.windowlogic.teaching import default_export_path, main, subject_label
+
+    assert default_export_path(str(tmp_path / "a.toml"), subject_label(None, 1), "sweep", ".mp4", "/x") == \
+        str(tmp_path / "a_mate2_sweep.mp4")
+    assert subject_label(None, "../etc") == "etc"  # no folder reached through a feature id
+    assert main([str(GEARBOX), str(tmp_path / "s.avi"), "mate:0", "cap-bore", "3", "0.0", "iso"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("matezone: ") and ".gif or .mp4" in err[0]
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_caption_band_and_table_text():
+    import numpy as np
+
+    from viewer.windowlogic.picture import caption_height, caption_lines, table_tsv, with_caption
+
+    lines = caption_lines("Cap", "mate 1: hole h with pin p", "h size 8.000 mm", "ASSEMBLES", "x20")
+    img = np.zeros((40, 300, 3), np.uint8)
+    out = with_caption(img, lines, 2.0)
+    assert out.shape == (40 + caption_height(5, 2.0), 300, 3)
+    band = out[40:]
+    assert (band == 255).all(axis=2).mean() > 0.6  # a white band ...
+    assert (band.min(axis=2) < 128).any()  # ... with dark type on it
+    assert (out[:40] == 0).all()  # the picture above is untouched
+    assert table_tsv(["a", "b"], [["x\ty", "line\nbreak"]]) == "a\tb\nx y\tline break\n"

@@ -233,10 +233,11 @@ def test_slider_moves_keep_the_3d_actors_and_their_text_follows(qtbot):
     assert gap > 0  # at 40 % of the tolerance used the parts clear (the banner says so too)
     # the label reads the sampled surface; geom's exact what-if gap agrees within half a unit of
     # the usual display precision (Units.decimals) -- a label that did not follow would be off by more
-    tight = [t.split(" (")[0] for t in _label_texts(v) if t.startswith("tightest ")]
-    assert tight and all(t.endswith(f" {u.value}") for t in tight)  # one per tightest spot
-    for t in tight:
-        assert abs(float(t.split()[1]) - gap) <= 0.5 * 10 ** -u.decimals + 1e-9
+    from viewer.scene3d.clearance import LOCAL_GAP
+
+    tight = [t.split(" (")[0][len(LOCAL_GAP):] for t in _label_texts(v) if t.startswith(LOCAL_GAP + " ")]
+    assert len(tight) == 1 and tight[0].endswith(f" {u.value}")  # one label at the tightest spot
+    assert abs(float(tight[0].split()[0]) - gap) <= 0.5 * 10 ** -u.decimals + 1e-9
     # a burst of moves before the event loop turns costs one rebuild and one frame
     renders, rebuilt = v.renders, []
     v.rendered.connect(lambda: rebuilt.append(1))
@@ -444,12 +445,12 @@ def test_export_image_is_not_blank(qtbot, tmp_path):
 
     win = _open(qtbot)
     p = tmp_path / "view.png"
-    assert win.export_image(str(p)) == str(p)
+    assert win.export_image(str(p), caption=False) == str(p)  # the picture alone (the caption: test_gui_teach)
     shot = _colours(QImage(str(p)))
     for a in win.view3d.layer_actions.values():  # the blank reference: same widget, nothing drawn
         a.setChecked(False)
     blank_p = tmp_path / "blank.png"
-    assert win.export_image(str(blank_p)) == str(blank_p)
+    assert win.export_image(str(blank_p), caption=False) == str(blank_p)
     blank = _colours(QImage(str(blank_p)))
     assert blank.shape == shot.shape
     assert len(np.unique(blank)) <= 2  # independent: a blank render is the background colour alone

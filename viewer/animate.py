@@ -172,6 +172,9 @@ def write_animation(frames: list[np.ndarray], path, fps: float = 6.0) -> Path:
                                     pixelformat="yuv420p", macro_block_size=1) as out:
                 for f in even:
                     out.append_data(f)
+        umask = os.umask(0)
+        os.umask(umask)
+        os.chmod(tmp, 0o666 & ~umask)  # mkstemp made it private; the file is the user's like any other
         os.replace(tmp, path)
     except BaseException:
         Path(tmp).unlink(missing_ok=True)

@@ -40,8 +40,10 @@ def build_menus(win) -> None:
     fm.addSeparator()
     add(fm, "export_report", "Export &report…", win.export_report, "Ctrl+Shift+R",
         "Pictures, PDF and results.json, as `matezone report` writes them")
-    add(fm, "export_image", "Export &image…", win.export_image, "Ctrl+Shift+E",
-        "Save the 3D view, or the 2D view shown, as a picture")
+    add(fm, "export_image", "Export &picture…", win.export_image, "Ctrl+Shift+E",
+        "Save the 3D view, or the 2D view shown, as a picture with a caption")
+    add(fm, "export_sweep", "Export size s&weep…", win.export_sweep, "Ctrl+Shift+W",
+        "Write the size sweep from MMC to LMC (the play control's) as an animated GIF or an MP4")
     add(fm, "open_report_folder", "Open the last report's &folder", win.open_report_folder,
         tip="Show the folder the last report was written to")
     win.act["open_report_folder"].setEnabled(False)
@@ -56,6 +58,11 @@ def build_menus(win) -> None:
     em.addAction(undo)
     em.addAction(redo)
     win.act["undo"], win.act["redo"] = undo, redo
+    em.addSeparator()
+    add(em, "copy_image", "Copy &image", win.copy_image, "Ctrl+Shift+C",
+        "Copy the pane shown (the 3D view, or the 2D view when it has the keyboard focus)")
+    add(em, "copy_table", "Copy &table", win.copy_table, "Ctrl+Shift+T",
+        "Copy the readout table as tab-separated text")
     em.addSeparator()
     add(em, "worst", "&Worst case", win.model.reset_states, "Ctrl+0",
         "Every feature at maximum material with all of its tolerance used")

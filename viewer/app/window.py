@@ -9,7 +9,7 @@ import sys
 import traceback
 from pathlib import Path
 
-from PyQt5.QtCore import QSettings, Qt, QThread, QUrl
+from PyQt5.QtCore import QSettings, Qt, QThread, QUrl, pyqtSignal
 from PyQt5.QtGui import QDesktopServices
 from PyQt5.QtWidgets import (
     QFileDialog,
@@ -27,6 +27,7 @@ from PyQt5.QtWidgets import (
 from geom.scenefile import SceneError, load
 
 from . import glyphs
+from .exports import ExportActions
 from .menus import APP_NAME, build_menus
 from .model import SceneModel
 from .panels import ContentsList, FeatureForm, MateForm, MessageBar, ReadoutTable, SceneForm, VerdictBanner, WhatIfPanel
@@ -53,16 +54,24 @@ def settings() -> QSettings:
 
 
 def _top_aligned(widget: QWidget) -> QWidget:
-    """A tab page holding ``widget`` at the top, the free space below it."""
+    """A tab page holding ``widget`` at the top, the free space below it; it scrolls when the
+    window is smaller than the page (a small screen or a large font)."""
     page = QWidget()
     lay = QVBoxLayout(page)
     lay.addWidget(widget)
     lay.addStretch(1)
-    return page
+    scroll = QScrollArea()
+    scroll.setWidgetResizable(True)
+    scroll.setFrameShape(QScrollArea.NoFrame)
+    scroll.setWidget(page)
+    return scroll
 
 
-class MainWindow(QMainWindow):
-    """matezone's desktop window."""
+class MainWindow(ExportActions, QMainWindow):
+    """matezone's desktop window (its picture and sweep exports: :class:`.exports.ExportActions`)."""
+
+    sweepExported = pyqtSignal(bool, str)  # a size sweep export ended: written?, file or message
+    MIN_3D_HEIGHT = 300  # the 3D view keeps this much height on a small screen (1024 x 700)
 
     def __init__(self, model: SceneModel | None = None, with_views: bool = True):
         super().__init__()
@@ -77,6 +86,9 @@ class MainWindow(QMainWindow):
         self._thread: QThread | None = None
         self._worker: ReportWorker | None = None
         self.progress: QProgressDialog | None = None
+        self._sthread: QThread | None = None  # the size sweep export
+        self._sworker = None
+        self.sweep_progress: QProgressDialog | None = None
         self.last_export: str | None = None
         self._last_focus_kind = None
 
@@ -125,6 +137,7 @@ class MainWindow(QMainWindow):
 
             self.view3d = View3D(m)
             self.views2d = Views2D(m)
+            self.view3d.plotter.interactor.setMinimumHeight(self.MIN_3D_HEIGHT)
             hsplit.addWidget(self.view3d)
             hsplit.addWidget(self.views2d)
             hsplit.setSizes([600, 580])
@@ -334,33 +347,6 @@ class MainWindow(QMainWindow):
 
     # ------------------------------------------------------------ export
 
-    def export_image(self, path: str | None = None) -> str | None:
-        if not self._typing_committed("export image"):
-            return None
-        if path is None:
-            path, _ = QFileDialog.getSaveFileName(
-                self, "Export image", str(Path.cwd() / "matezone.png"),
-                "3D view (*.png);;2D view shown (*.svg *.pdf *.png)")
-        if not path:
-            return None
-        p = Path(path)
-        if p.exists() and not p.is_file():
-            self.model.message.emit("error", f"{path}: is not a regular file (a folder, device or pipe); "
-                                             "no picture written")
-            return None
-        try:
-            if p.suffix.lower() in (".svg", ".pdf") and self.views2d is not None:
-                self.views2d.figure().savefig(path)
-            elif self.view3d is not None:
-                self.view3d.plotter.screenshot(path)
-            elif not self.grab().save(path):
-                raise OSError(f"{path}: cannot be written")
-        except (OSError, ValueError, OverflowError, RuntimeError) as e:
-            self.model.message.emit("error", f"{path}: cannot be written ({e})")
-            return None
-        self.model.message.emit("info", f"picture saved: {path}")
-        return path
-
     def export_report(self, folder: str | None = None) -> None:
         """Write the report folder in a worker (``matezone report``, all or nothing). A folder
         that holds other files is refused at once with the command's message."""
@@ -462,6 +448,9 @@ class MainWindow(QMainWindow):
                 self._worker.cancel()
             self._thread.quit()
             self._thread.wait()
+        if self._sthread is not None:
+            self.cancel_sweep()
+            self._end_sweep()
         self.model.stop_worker()
         if self.view3d is not None:
             self.view3d.close_plotter()

@@ -1,6 +1,7 @@
 """The jobs that run off the GUI thread, each a QObject moved to its own QThread and answering
 with Qt signals: the inspection of measured points (:func:`geom.inspect.inspect_feature`) and the
-report export (the ``matezone report`` command in a separate process)."""
+report export (the ``matezone report`` command in a separate process) and the teaching sweep's
+export (:mod:`viewer.windowlogic.teaching`'s job, in a separate process too)."""
 
 from __future__ import annotations
 
@@ -106,6 +107,64 @@ class ReportWorker(QObject):
 
     def cancel(self) -> None:
         """Stop the report (safe from any thread): the command cleans up its temporary folder."""
+        with self._lock:
+            self.cancelled = True
+            if self.proc is not None and self.proc.poll() is None:
+                self.proc.terminate()
+
+
+class SweepWorker(QObject):
+    """Writes the teaching sweep of the scene shown to a GIF or MP4 off the GUI thread: the job
+    (:func:`viewer.windowlogic.teaching.main`) runs in a separate process on a temporary copy of
+    the scene, like the report, and writes the file all or nothing; :meth:`cancel` stops it and
+    leaves no file (a previous one at the path is unchanged)."""
+
+    progress = pyqtSignal(str)
+    finished = pyqtSignal(str)  # the file written
+    failed = pyqtSignal(str)  # the job's one message
+
+    def __init__(self, scene, out: str, subject, feature_id: str, steps: int, turns: float, view: str):
+        super().__init__()
+        self.scene, self.out, self.subject, self.feature_id = scene, out, subject, feature_id
+        self.steps, self.turns, self.view = steps, turns, view
+        self.proc: subprocess.Popen | None = None
+        self.cancelled = False
+        self._lock = threading.Lock()
+
+    def run(self) -> None:
+        from viewer.windowlogic.teaching import sweep_command
+
+        try:
+            with tempfile.TemporaryDirectory(prefix="matezone-sweep-") as tmp:
+                path = os.path.join(tmp, "scene.toml")
+                save(self.scene, path)
+                with self._lock:
+                    if self.cancelled:
+                        self.failed.emit(f"cancelled; nothing was written to {self.out!r}")
+                        return
+                    self.proc = subprocess.Popen(
+                        sweep_command(sys.executable, path, self.out, self.subject, self.feature_id,
+                                      self.steps, self.turns, self.view),
+                        stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, cwd=tmp,
+                        env=dict(os.environ, PYTHONUNBUFFERED="1"))
+                for line in self.proc.stdout:
+                    if line.strip():
+                        self.progress.emit(line.strip()[:120])
+                err = self.proc.stderr.read()
+                code = self.proc.wait()
+            if code == 0:
+                self.finished.emit(self.out)
+                return
+            lines = [x.strip() for x in err.strip().splitlines() if x.strip()]
+            msg = lines[-1].removeprefix("matezone: ") if lines else ""
+            if self.cancelled and (code < 0 or not msg):
+                msg = f"cancelled; nothing was written to {self.out!r}"
+            self.failed.emit(msg or f"the sweep job exited with status {code}")
+        except Exception as e:  # the message goes to the window; the window keeps running
+            self.failed.emit(f"{type(e).__name__}: {e}")
+
+    def cancel(self) -> None:
+        """Stop the job (safe from any thread)."""
         with self._lock:
             self.cancelled = True
             if self.proc is not None and self.proc.poll() is None:

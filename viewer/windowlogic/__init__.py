@@ -14,4 +14,8 @@ modules for their texts and rows and hand the user's input to them.
 - :mod:`~viewer.windowlogic.banner`: the verdict banner's words and colour role
 - :mod:`~viewer.windowlogic.points`: the points files an inspection or a report reads
 - :mod:`~viewer.windowlogic.export`: the ``matezone report`` command the window runs
+- :mod:`~viewer.windowlogic.teaching`: the size sweep the play control walks and the sweep
+  export job; the exports' default file names
+- :mod:`~viewer.windowlogic.picture`: the caption block of an exported picture, the readout
+  table as tab-separated text
 """

@@ -7,6 +7,7 @@ from :mod:`viewer.windowlogic`).
 - :mod:`.forms`: the editor forms' common behaviour, the scene form, the mate form
 - :mod:`.feature_form`: the feature editor
 - :mod:`.whatif`: the what-if controls (produced size, tilt direction, tolerance used)
+- :mod:`.play`: the teaching play control (a size sweep played into the what-if states)
 - :mod:`.inspection`: the inspection controls (data source, bonus basis, load points)
 - :mod:`.verdict`: the verdict banner
 - :mod:`.readouts`: the readout table
@@ -23,12 +24,13 @@ from .feature_form import FeatureForm
 from .forms import Form, MateForm, SceneForm
 from .inspection import InspectionControls
 from .messages import MessageBar
+from .play import PlayBar, SweepPlayer
 from .readouts import ReadoutTable
 from .verdict import VerdictBanner
 from .whatif import FeatureControls, LengthSpin, WhatIfPanel
 
 __all__ = [
-    "BAD_RED", "BASIS_TEXT", "ERROR_STYLE", "NEUTRAL", "OK_GREEN", "ROLE_LOOK", "ContentsList", "FeatureControls",
+    "BAD_RED", "BASIS_TEXT", "ERROR_STYLE", "NEUTRAL", "OK_GREEN", "PlayBar", "ROLE_LOOK", "ContentsList", "FeatureControls",
     "FeatureForm", "Form", "InspectionControls", "LengthSpin", "MateForm", "MessageBar", "ReadoutTable",
-    "SceneForm", "VerdictBanner", "WhatIfPanel", "axis_readings", "length_decimals", "other_axis_basis",
+    "SceneForm", "SweepPlayer", "VerdictBanner", "WhatIfPanel", "axis_readings", "length_decimals", "other_axis_basis",
 ]

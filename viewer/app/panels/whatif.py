@@ -24,6 +24,7 @@ from viewer.windowlogic.fields import length_decimals
 
 from ..model import SceneModel
 from .inspection import InspectionControls
+from .play import PlayBar
 
 
 class LengthSpin(QDoubleSpinBox):
@@ -172,6 +173,8 @@ class WhatIfPanel(QWidget):
         head.addWidget(hint, 1)
         head.addWidget(reset)
         self.lay.addLayout(head)
+        self.play = PlayBar(model)
+        self.lay.addWidget(self.play)
         self.hint = hint
         self.reset = reset
         self.groups: dict[str, FeatureControls] = {}
@@ -215,6 +218,7 @@ class WhatIfPanel(QWidget):
             hint = self._hint()
         self.hint.setText(hint)
         self.reset.setVisible(insp is None)
+        self.play.setVisible(insp is None and fast is None)
         self.reset.setEnabled(bool(fids))
         if insp is not None:
             self.inspection = InspectionControls(self.model, insp)
