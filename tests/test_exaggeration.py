@@ -10,7 +10,7 @@ from hypothesis import strategies as st
 
 from geom.analysis import analyse_scene
 from geom.model import Characteristic, Feature, Kind, Mate, Material, Scene, Tolerance, Units
-from viewer.exaggeration import NICE, Exaggeration, auto_exaggeration, auto_k, nice_floor
+from viewer.exaggeration import NICE, Exaggeration, auto_exaggeration, auto_k, bar_length, nice_floor
 
 # The round factors a drawing may use: 1, 1.5, 2, 2.5, 3, 4, 5, 6, 8 times a power of ten
 # (common practice for drawing scales and chart steps, no source). Written out here, not taken
@@ -150,10 +150,22 @@ def test_label_states_k_and_a_shortened_diameter():
     full = Exaggeration(60.0, 3.0, 3.0)
     short = Exaggeration(40.0, 20.0, 4.4)
     assert not full.shortened and short.shortened
-    assert full.label(Units.MM).startswith("radial deviations ×60 about ⌀6.000")
+    assert full.label(Units.MM) == "radial deviations ×60 about Ø6.000; lengths and dimension texts true"
     assert "not to scale" not in full.label(Units.MM)
-    assert "×40 about ⌀40.000; diameter shortened (not to scale)" in short.label(Units.MM)
-    assert Exaggeration(1.5, 0.125, 0.125).label(Units.IN).startswith("radial deviations ×1.5 about ⌀0.2500")
+    # the common sentence first, the view's own clause after it
+    assert short.label(Units.MM) == short.text(Units.MM) + "; diameter shortened, not to scale"
+    assert short.text(Units.MM) == "radial deviations ×40 about Ø40.000; lengths and dimension texts true"
+    assert Exaggeration(1.5, 0.125, 0.125).label(Units.IN).startswith("radial deviations ×1.5 about Ø0.2500")
+    assert Exaggeration(1.0, 3.0, 3.0).text(Units.MM).startswith("true scale: radial deviations ×1")
+
+
+@pytest.mark.parametrize("k, room, expect", [(50.0, 1.0, 0.02), (60.0, 0.75, 0.01), (40.0, 0.75, 0.01),
+                                             (8.0, 1.0, 0.1), (1.0, 0.7, 0.5), (300.0, 0.75, 0.002)])
+def test_bar_length_is_the_largest_1_2_5_step_in_the_room(k, room, expect):
+    # room / k, rounded down to 1, 2 or 5 x 10^n, by hand: 1.0 / 50 = 0.02; 0.75 / 60 = 0.0125 -> 0.01;
+    # 0.75 / 40 = 0.01875 -> 0.01; 1 / 8 = 0.125 -> 0.1; 0.7 -> 0.5; 0.75 / 300 = 0.0025 -> 0.002
+    assert bar_length(k, room) == pytest.approx(expect, rel=1e-12)
+    assert k * bar_length(k, room) <= room * (1 + 1e-12)
 
 
 # ----------------------------------------------------------------- 3D: from the scene alone
@@ -170,30 +182,37 @@ def test_auto_exaggeration_of_a_hand_computed_mate():
     # Cap: the smallest diameter a drawn boundary can have is the smaller limit less the largest
     # tolerance allowed (t + size tolerance at LMC): hole 8.000 - 0.030 = 7.970, pin
     # 7.965 - 0.015 = 7.950; r_min = 3.975, R0 = 4.000, cap = (2/3) 4.000 / 0.025 = 106.7.
-    # k = round step at most 53.3: 50.
+    # Room (the 2D views at any state in the range): the pin at LMC 7.965 with 0.015 allowed
+    # reaches 7.965 / 2 - 0.015 / 2 = 3.975, 0.025 inside R0; the hole at LMC 8.015 with 0.030
+    # reaches 4.0075 + 0.015 = 4.0225 (+3e-6 sec term), 0.0225 outside: 0.4 * 4.000 / 0.025 = 64.
+    # k = round step at most min(53.3, 106.7, 64): 50.
     hole = Feature("h", Kind.HOLE, (8.000, 8.015), 12.0, tolerance=_perp(0.015))
     pin = Feature("p", Kind.PIN, (7.965, 7.975), 12.0, tolerance=_perp(0.005))
     res = _res(hole, pin, mates=(Mate("h", "p"),))
     assert auto_exaggeration(res, mate_index=0) == 50.0
     # the pin alone is its own reference: D = 7.975, t = 0.005: 0.7975 / 0.005 = 159.5;
-    # cap (2/3) 3.9875 / ((7.975 - 7.950) / 2) = 212.7; round step: 150
-    assert auto_exaggeration(res, feature_id="p") == 150.0
+    # cap (2/3) 3.9875 / ((7.975 - 7.950) / 2) = 212.7; room: at LMC its side reaches 3.975,
+    # 0.0125 inside R0 = 3.9875, 0.4 * 3.9875 / 0.0125 = 127.6; round step: 100
+    assert auto_exaggeration(res, feature_id="p") == 100.0
 
 
-def test_auto_exaggeration_cap_keeps_the_smallest_radius_visible():
+def test_auto_exaggeration_room_over_the_whole_range_keeps_the_smallest_radius_visible():
     # a hole with a wide size tolerance: 10.000-10.100, zone 0.010 at MMC (invented here).
-    # target 0.10 * 10.000 / 0.010 = 100; but the boundary at 10.000 - (0.010 + 0.100) = 9.890
-    # gives R0 - r_min = 0.055, cap = (2/3) 5.000 / 0.055 = 60.6: k = 60, and the smallest
-    # radius is drawn at 5.000 - 60 * 0.055 = 1.7 >= 5.000 / 3.
+    # target 0.10 * 10.000 / 0.010 = 100; the boundary at 10.000 - (0.010 + 0.100) = 9.890
+    # gives R0 - r_min = 0.055, cap = (2/3) 5.000 / 0.055 = 60.6. But at LMC 10.100 the zone is
+    # 0.110 (ASME bonus, from memory) and the wall, d / (2 cos theta) with tan theta = 0.110 / 10,
+    # plus half the zone, reaches 5.05031 + 0.055 = 5.10531 (a 720-gon vertex up to 2.4e-5 more):
+    # room 0.4 * 5.000 / 0.10533 = 18.99: k = 15. The smallest radius is drawn at
+    # 5.000 - 15 * 0.055 = 4.175 >= 5.000 / 3.
     hole = Feature("h", Kind.HOLE, (10.000, 10.100), 10.0, tolerance=_perp(0.010))
     k = auto_exaggeration(_res(hole), feature_id="h")
-    assert k == 60.0
+    assert k == 15.0
     assert 5.000 - k * 0.055 >= 5.000 / 3
 
 
 def test_auto_exaggeration_without_a_zone_uses_the_size_tolerance():
     # no geometric tolerance: the size tolerance 0.012 is what is drawn; 0.10 * 6.000 / 0.012
-    # = 50, no boundary below the smaller limit (no cap): 50
+    # = 50, no boundary below the smaller limit (no cap); room 0.4 * 3.000 / 0.006 = 200: 50
     hole = Feature("h", Kind.HOLE, (6.000, 6.012), 8.0)
     assert auto_exaggeration(_res(hole), feature_id="h") == 50.0
     assert auto_exaggeration(_res()) == 1.0  # nothing toleranced to scale
@@ -211,3 +230,9 @@ def test_auto_exaggeration_invariants(d, ts, t, kind):
     R0, r_min = D / 2, (d - t - ts) / 2
     if k > 1.0 and r_min < R0:
         assert R0 - k * (R0 - r_min) >= R0 / 3 * (1 - 1e-9)
+    # the room at both limits: a wall of diameter s with zone z (ASME bonus |s - MMC|) lies
+    # between s / 2 - z / 2 and s / 2 + z / 2 from the basic axis (at least; a tilt adds more)
+    for s in (d, d + ts):
+        z = t + abs(s - D)
+        dev = max(abs(s / 2 + z / 2 - R0), abs(s / 2 - z / 2 - R0))
+        assert k == 1.0 or k * dev <= 0.4 * R0 * (1 + 1e-9)

@@ -73,16 +73,6 @@ def _texts(fig):
     return " ".join(t.get_text() for t in fig.findobj(lambda a: hasattr(a, "get_text")))
 
 
-def _fill_rule_k(spread, r_disp, fill=0.4):
-    """Independent reference for the exaggeration of a 2D view: the largest factor of the
-    drawing series (1, 1.5, 2, 2.5, 3, 4, 5, 6, 8 x 10^n; common practice, no source) with
-    k * spread <= fill * r_disp, the largest deviation drawn filling at most 0.4 of the drawn
-    radius (the rule the 2D views state, viewer.exaggeration.auto_k), found by scanning the
-    written-out series."""
-    series = [m * 10.0**e for e in range(0, 7) for m in (1, 1.5, 2, 2.5, 3, 4, 5, 6, 8)]
-    return max([k for k in series if k * spread <= fill * r_disp] or [1.0])
-
-
 def _chord(d, segments):
     """Polygon error: the section polygons straddle the true curve (geom.throughview), so a
     radius is off by at most r (1 - cos(pi / n)) either way (geometry)."""
@@ -177,46 +167,63 @@ def test_interference_is_drawn_in_the_warning_colour(bracket_through, gearbox):
     fig2, data2 = F.through_view(gearbox, 0)
     assert _by_gid(fig2, "overlap") == []
     (txt2,) = _by_gid(fig2, "gap-text")
-    assert txt2.get_text().startswith("clearance")
+    assert txt2.get_text().startswith("guaranteed clearance\n(through-view)\n")
     assert data2.clearance > 0
 
 
-def test_through_view_states_the_fill_rule_exaggeration_and_true_dimensions(bracket_through):
-    # The largest radial deviation drawn, from the geometry (geom.throughview's model, computed
-    # here): the hole's end sections are ellipses with semi-axes d / (2 cos theta) and d / 2,
-    # tan theta = t / L = 0.030 / 8.0, centred t / 2 either side of the basic axis; the far end
-    # of the major axis lies t / 2 + d / (2 cos theta) from it. The polygons' vertices sit on or
-    # outside the curve, by at most the factor 2 / (1 + cos(pi / n)). The other curves deviate
-    # less from r0 = 3.000: the inscribed circle at VC 5.970 by 0.015, the pin's sections by
-    # 0.005 + (3.000 - 2.995) = 0.010, the pin's envelope at VC 6.000 by 0.
+# The bracket's one factor, by hand (ASME Y14.5 bonus and VC from memory; limits from the scene
+# file): hole 6.000-6.012 with 0.030 at MMC over 8.0, pin 5.980-5.990 with 0.010 at MMC.
+# Look: 0.10 x D / t = 0.10 x 6.000 / 0.030 = 20. Cap: smallest boundary 6.000 - 0.042 = 5.958,
+# R0 - r_min = 0.021, (2/3) 3 / 0.021 = 95. Room over the range: the hole at LMC 6.012 with
+# 0.042 allowed reaches 3.006 / cos(atan(0.042 / 8)) + 0.021 = 3.02704, 0.02704 beyond r0:
+# 0.4 x 3 / 0.02704 = 44.4. The smallest: 20 (a round step already).
+BRACKET_K = 20.0
+
+
+def test_through_view_states_the_one_exaggeration_and_true_dimensions(bracket_through):
+    # The largest radial deviation drawn at the worst case, from the geometry (geom.throughview's
+    # model, computed here): the hole's end sections are ellipses with semi-axes d / (2 cos theta)
+    # and d / 2, tan theta = t / L = 0.030 / 8.0, centred t / 2 either side of the basic axis; the
+    # far end of the major axis lies t / 2 + d / (2 cos theta) from it. The polygons' vertices sit
+    # on or outside the curve, by at most the factor 2 / (1 + cos(pi / n)). At the one factor it
+    # fills well under 0.4 of r0 (the room rule).
     fig, data = bracket_through
     d, t, L, r0 = 6.000, 0.030, 8.0, 6.000 / 2
     a = d / (2 * math.cos(math.atan2(t, L)))
-    lo = t / 2 + a - r0
     hi = t / 2 + a * 2 / (1 + math.cos(math.pi / data.segments)) - r0
-    assert lo > 0.015  # the section's far point governs (it is beyond the inscribed circle's 0.015)
-    k = _fill_rule_k(lo, r0)
-    assert k == _fill_rule_k(hi, r0) == 60  # 1.200 / 0.01502 = 79.9: the step below 80
-    assert _fig_text(fig, "footer").startswith(f"radial deviations ×{k:g} about ⌀6.000")
+    k = data.exaggeration.k
+    assert k == BRACKET_K
+    assert k * hi <= 0.4 * r0
+    assert _fig_text(fig, "footer").startswith(
+        f"radial deviations ×{k:g} about Ø6.000; lengths and dimension texts true\n")
     text = _texts(fig)
     assert f"⌀{HOLE_VC:.3f}" in text and f"⌀{PIN_VC:.3f}" in text  # true values, not the drawn ones
 
 
-def test_section_view_states_the_fill_rule_exaggeration(bracket_section):
-    # The section's largest radial deviation, by hand: a hole wall lies d / (2 cos theta) from
-    # its axis (horizontal cut of a tilted cylinder) and the axis moves t / 2 either way:
-    # 3.000 / cos(atan(0.030 / 8)) - 3.000 + 0.015 = 0.015021; the pin's wall
-    # |2.995 / cos(atan(0.010 / 8)) - 3.000| + 0.005 = 0.010; the VC lines 0.015 and 0. The
-    # drawn radius is r0 = 3.000 (not shortened: 0.55 L = 4.4 > r0).
+def test_section_view_states_the_one_exaggeration(bracket_section):
+    # The section uses the same k as the through-view (BRACKET_K, by hand above); its drawn
+    # radius is r0 = 3.000 (not shortened: 0.55 L = 4.4 > r0), so its footer is the same sentence.
     fig, data = bracket_section
-    r0 = 3.000
-    spread = r0 / math.cos(math.atan2(0.030, 8.0)) - r0 + 0.030 / 2
-    k = _fill_rule_k(spread, r0)
-    assert k == 60
-    assert _fig_text(fig, "footer").startswith(f"radial deviations ×{k:g} about ⌀6.000 — dimension texts are TRUE")
+    k = data.exaggeration.k
+    assert k == BRACKET_K and data.exaggeration.r_disp == 3.0
+    assert _fig_text(fig, "footer").startswith(
+        f"radial deviations ×{k:g} about Ø6.000; lengths and dimension texts true\n")
     # the tilt text says the drawn angle: atan(k t / L), in degrees to one decimal
     (tilt,) = _by_gid(fig, "bracket-hole-tilt-text")
     assert f"drawn {math.degrees(math.atan(k * 0.030 / 8.0)):.1f}° (×{k:g})" in tilt.get_text()
+
+
+@pytest.mark.parametrize("view", ["through", "section"])
+def test_scale_bar_is_drawn_at_k_and_labelled_true(bracket, view):
+    # the bar's drawn length over k is its stated true length: at k = 20 and a quarter of
+    # r0 = 3.000 (0.75 drawn), 0.75 / 20 = 0.0375 rounds down to the 1-2-5 step 0.02
+    fig, data = (F.through_view if view == "through" else F.section_view)(bracket, 0)
+    (bar,) = _by_gid(fig, "scale-bar")
+    xs = np.asarray(bar.get_xdata(), float)
+    drawn = float(np.nanmax(xs) - np.nanmin(xs))
+    (txt,) = _by_gid(fig, "scale-bar-text")
+    assert txt.get_text() == "0.020 mm true"
+    assert drawn / data.exaggeration.k == pytest.approx(0.020, rel=1e-9)
 
 
 def test_section_zone_width_is_tolerance_allowed(bracket):

@@ -262,13 +262,17 @@ def test_auto_exaggeration(gearbox):
     # larger one, the dowel's is 0.005), rounded down in the round series 1, 1.5, 2, 2.5, 3, 4,
     # 5, 6, 8 x 10^n (common practice, no source): 50. The cap against shrinking a drawn radius
     # below a third of R0 = 4 does not bite: the smallest radius any boundary can have is the
-    # dowel's (7.965 - 0.015) / 2 = 3.975, and (2/3) x 4 / (4 - 3.975) = 106.7 > 53.3.
+    # dowel's (7.965 - 0.015) / 2 = 3.975, and (2/3) x 4 / (4 - 3.975) = 106.7 > 53.3. The room
+    # rule of the 2D views over the whole size range does not bite either: the dowel at LMC
+    # 7.965 with 0.015 allowed reaches 3.975, 0.025 inside R0, and the bore at LMC 8.015 with
+    # 0.030 reaches 4.0225: 0.4 x 4 / 0.025 = 64 > 53.3.
     assert k == 50.0
     sc3 = build_mate_scene(gearbox, 0)
     assert sc3.exaggeration == 50.0
-    assert sc3.caption == ("RADIAL DEVIATIONS x 50\nzones, gaps, tilts, size differences drawn x 50 "
-                           "about \u00d88.000; lengths true")  # about the hole's MMC diameter 8.000
-    assert build_mate_scene(gearbox, 0, exaggeration=1.0).caption.startswith("TRUE SCALE")
+    # the one scale sentence about the hole's MMC diameter 8.000, then the 3D picture's clause
+    assert sc3.scale_text == "radial deviations \u00d750 about \u00d88.000; lengths and dimension texts true"
+    assert sc3.caption == sc3.scale_text + "\nzones, gaps, tilts and size differences all drawn at this factor"
+    assert build_mate_scene(gearbox, 0, exaggeration=1.0).caption.startswith("true scale: radial deviations \u00d71")
 
 
 def test_bowed_and_width_zones_build():

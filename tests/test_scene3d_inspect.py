@@ -105,7 +105,9 @@ def test_exaggerated_points_keep_deviation_times_k(scan):
     r_ls = ls.diameter / 2
     drawn = _dist_to_line(P, p0d, dd)
     assert np.allclose(drawn - (R0 + k * (r_ls - R0)), k * insp.radial_deviation, atol=1e-9)
-    assert "x 40" in sc3.caption
+    # the common scale sentence (viewer.exaggeration.scale_text) about the MMC diameter, written out
+    assert sc3.caption.startswith(f"radial deviations ×40 about Ø{insp.feature.mmc:.3f}; lengths and dimension texts true\n")
+    assert sc3.scale_text == sc3.caption.partition("\n")[0]
 
 
 def test_unrelated_envelope_diameter_from_mesh(scan, true_scale):
@@ -238,7 +240,7 @@ def test_readouts_and_verdicts(scan, true_scale):
                  "unrelated actual mating envelope (AME)", "related actual mating envelope (AME)",
                  "tolerance zone", "tolerance allowed = t + bonus", "VC"):
         assert what in legend
-    assert "TRUE SCALE" in true_scale.caption
+    assert true_scale.caption.startswith("true scale: radial deviations ×1 (no exaggeration)")
     labels = " | ".join(lb.text for lb in true_scale.labels)
     assert "feature axis: needs" in labels and "(governs)" in labels and "(does not govern)" in labels
 

@@ -17,8 +17,10 @@ what-if state in, a Figure and the numbers it shows out.
 Tolerances are tiny against sizes (0.015 on 8 mm), so radial deviations are exaggerated about a
 reference radius R0: a curve at distance r from the axis is drawn at R0' + k (r - R0), an axis
 offset x at k x (R0' = R0 unless a wide, short feature is drawn with its diameter shortened);
-the mapping and k are :mod:`viewer.exaggeration`'s, shared with the 3D scene. Every drawing says
-so ("radial deviations x k"); every dimension text gives the TRUE value at the units' precision.
+the mapping and k are :mod:`viewer.exaggeration`'s: one k per subject, the 3D scene's, at every
+what-if state. Every drawing states it in the one sentence of
+:func:`viewer.exaggeration.scale_text` and carries a scale bar labelled with its TRUE length;
+every dimension text gives the TRUE value at the units' precision.
 Geometry is computed in true units (shapely, :mod:`geom.throughview`) and only mapped for
 display; each function returns ``(Figure, data)`` where the frozen data object keeps the true
 geometry and numbers, and the artists carry ``gid`` labels so tests can read them back.

@@ -223,8 +223,14 @@ def _half(units, clearance: float) -> str:
     return units.fmt(abs(float(units.fmt(clearance))) / 2.0)
 
 
-def _gap_text(u, clearance: float, interferes: bool, consequence: str, line_to_line_text: str) -> str:
-    """The dimension text of a diametral clearance or overlap (true value, and per side).
+GUARANTEED = "guaranteed clearance (through-view)"
+"""The name of the clearance every part in these states is sure of (the banner's number)."""
+
+
+def _gap_text(u, clearance: float, interferes: bool, consequence: str, line_to_line_text: str,
+              name: str = GUARANTEED) -> str:
+    """The dimension text of a diametral clearance or overlap (true value, and per side),
+    named ``name``.
 
     >>> from geom.model import Units
     >>> print(_gap_text(Units.MM, -0.030, True, "no fit", "l-t-l"))
@@ -237,4 +243,25 @@ def _gap_text(u, clearance: float, interferes: bool, consequence: str, line_to_l
         return f"OVERLAP {dia} on ⌀\n({per} per side):\n{consequence}"
     if line_to_line(clearance):
         return line_to_line_text
-    return f"clearance {dia} on ⌀\n({per} per side)"
+    head = name.replace(" (", "\n(")  # "guaranteed clearance\n(through-view)": a narrow callout
+    return f"{head}\n{dia} on ⌀\n({per} per side)"
+
+
+def _scale_bar(ax, ex, units, fs: float, height: float = 0.03):
+    """A short bar in the lower left corner of the axes, drawn at the picture's k and labelled
+    with its TRUE length (:func:`viewer.exaggeration.bar_length`, at most a quarter of the
+    drawn radius), ``height`` up the axes: a reader measures a drawn gap against it."""
+    from viewer.exaggeration import bar_length
+
+    (x0, x1), (y0, y1) = ax.get_xlim(), ax.get_ylim()
+    true = bar_length(ex.k, 0.25 * ex.r_disp)
+    length, h = ex.k * true, 0.012 * (y1 - y0)
+    bx, by = x0 + 0.02 * (x1 - x0), y0 + height * (y1 - y0)
+    xs = [bx, bx + length, np.nan, bx, bx, np.nan, bx + length, bx + length]
+    ys = [by, by, np.nan, by - h, by + h, np.nan, by - h, by + h]
+    ax.plot(xs, ys, color=S.TEXT, lw=1.6, solid_capstyle="butt", zorder=9, gid="scale-bar")
+    ax.text(bx, by + 1.6 * h, f"{units.fmt(true)} {units.value} true", fontsize=fs * 0.8, color=S.TEXT,
+            va="bottom", ha="left", zorder=9, gid="scale-bar-text")
+    ax.set_xlim(x0, x1)
+    ax.set_ylim(y0, y1)
+    return true

@@ -15,9 +15,9 @@ from matplotlib.figure import Figure
 from geom.analysis import SceneResult, clearance_at
 from geom.boundaries import effective_size
 from geom.placement import worst_case_axis
-from viewer.exaggeration import Exaggeration, auto_k
+from viewer.exaggeration import FILL, Exaggeration, features_exaggeration, range_spread
 
-from .aids import FIGSIZE, _clean_axes, _footer, _new_figure, _title, style_context
+from .aids import FIGSIZE, _clean_axes, _footer, _new_figure, _scale_bar, _title, style_context
 from .section_steps import (
     _draw_break_marks,
     _draw_datum,
@@ -80,10 +80,12 @@ def _wall_gap(sub: Subject, sts: dict, pls: dict, u: np.ndarray):
 
 
 def section_data(res: SceneResult, subject, states=None, exaggeration: float | None = None) -> SectionData:
-    """The section's true numbers and its exaggeration: unless given, k is
-    :func:`viewer.exaggeration.auto_k` of the largest radial deviation drawn (a wall's
-    half-width plus half its axis offset, a boundary's radius) from the reference radius, with
-    the diameter drawn shortened to at most 0.55 of the longest length."""
+    """The section's true numbers and its exaggeration: unless given, k is the subject's one
+    factor (:func:`viewer.exaggeration.subject_exaggeration`), the same at every what-if state
+    and in the 3D scene. The diameter is drawn shortened to 0.55 of the longest length, but
+    never so short that the largest deviation over the whole size range
+    (:func:`viewer.exaggeration.range_spread`) drawn at k fills more than
+    :data:`viewer.exaggeration.FILL` of it; the drawn radius is the same at every state."""
     sub = _subject(res, subject)
     sts = resolve_states(res, sub, states)
     lead = sub.hole or sub.pin
@@ -99,12 +101,8 @@ def section_data(res: SceneResult, subject, states=None, exaggeration: float | N
         clr = clearance_at(sub.hole, sub.pin, sts[sub.hole.id], sts[sub.pin.id])
     r0 = lead.mmc / 2.0
     L = max(max(f.length for f in sub.features), max(_zone_height(pl) for pl in pls.values()))
-    r_disp = min(r0, 0.55 * L)
-    spread = 0.0
-    for f in sub.features:
-        pl, st = pls[f.id], sts[f.id]
-        spread = max(spread, abs(_half_width(f, st, pl) - r0) + pl.offset / 2, abs(bnd[f.id] / 2 - r0))
-    k = float(exaggeration) if exaggeration else auto_k(spread, r_disp)
+    k = float(exaggeration) if exaggeration else features_exaggeration(res, sub.features)
+    r_disp = min(r0, max(0.55 * L, k * range_spread(sub.features, r0) / FILL))
     return SectionData(sub, sts, direction, pls, zone, tilt, bnd, gap, gap_z, side, clr, Exaggeration(k, r0, r_disp))
 
 
@@ -123,8 +121,8 @@ def section_view(res: SceneResult, subject, states=None, exaggeration: float | N
         u = res.scene.units
         dir_txt = f"{data.direction_deg:.0f}°"
         _title(fig, ax, own, f"Section in the plane of the tilt ({dir_txt} on A)\n{data.subject.title}", fontsize)
-        _footer(fig, ax, own, [data.exaggeration.label(u) + "; lengths along the axis to scale",
-                               _state_line(res, data.states)], fontsize)
+        _footer(fig, ax, own, [data.exaggeration.label(u), _state_line(res, data.states)], fontsize)
+        _scale_bar(ax, data.exaggeration, u, fontsize, height=0.13)
     return fig, data
 
 

@@ -24,6 +24,7 @@ from geom.placement import AxisPlacement
 from viewer import style as S
 
 from .aids import (
+    GUARANTEED,
     HOLE_LINE,
     _box_ratio,
     _column,
@@ -270,7 +271,8 @@ def _draw_gap(ax, d: SectionData, fr: _Frame, interferes: bool, un):
     ax.annotate("", xy=(xp, zdim), xytext=(xh, zdim),
                 arrowprops=dict(arrowstyle="<|-|>", color=S.TEXT, lw=1.1, shrinkA=0, shrinkB=0, mutation_scale=7),
                 gid="gap-dim", zorder=10)
-    txt = _gap_text(un, d.clearance, interferes, "the pin hits the wall", "line-to-line:\nzero clearance")
+    txt = _gap_text(un, d.clearance, interferes, "the pin hits the wall", "line-to-line:\nzero clearance",
+                    GUARANTEED)
     tip = (min(xh, xp), zdim) if d.gap_side < 0 else (max(xh, xp), zdim)
     return (tip, txt, S.INTERFERENCE if interferes else S.TEXT, True, "gap-text")
 

@@ -22,10 +22,11 @@ from geom.model import Feature, Kind
 from geom.placement import worst_case_axis
 from geom.throughview import ThroughView, clear_opening, swept_envelope
 from viewer import style as S
-from viewer.exaggeration import Exaggeration, auto_k
+from viewer.exaggeration import Exaggeration, features_exaggeration
 
 from .aids import (
     FIGSIZE,
+    GUARANTEED,
     HOLE_LINE,
     OPENING_FILL,
     _box_ratio,
@@ -37,6 +38,7 @@ from .aids import (
     _legend_top,
     _new_figure,
     _poly_path,
+    _scale_bar,
     _title,
     style_context,
 )
@@ -76,9 +78,9 @@ def _through_geometry(f: Feature, st: FeatureState, segments: int):
 
 def through_data(res: SceneResult, subject, states=None, exaggeration: float | None = None,
                  segments: int = 720) -> ThroughData:
-    """The through-view's true geometry and its exaggeration: unless given, k is
-    :func:`viewer.exaggeration.auto_k` of the largest radial deviation of any drawn curve
-    (section vertices, circles) from the reference radius (half the lead feature's MMC)."""
+    """The through-view's true geometry and its exaggeration: unless given, k is the
+    subject's one factor (:func:`viewer.exaggeration.subject_exaggeration`), the same at every
+    what-if state and in the 3D scene, about the reference radius (half the lead feature's MMC)."""
     sub = _subject(res, subject)
     sts = resolve_states(res, sub, states)
     hv = pv = None
@@ -92,16 +94,7 @@ def through_data(res: SceneResult, subject, states=None, exaggeration: float | N
         clearance = clearance_at(sub.hole, sub.pin, sts[sub.hole.id], sts[sub.pin.id])
         gap = (hv.diameter - pv.diameter) / 2.0
     r0 = (sub.hole or sub.pin).mmc / 2.0
-    radii = []
-    for tv in (hv, pv):
-        if tv is None:
-            continue
-        for poly in tv.sections:
-            xy = np.asarray(poly.exterior.coords)
-            radii += [np.hypot(xy[:, 0], xy[:, 1]).min(), np.hypot(xy[:, 0], xy[:, 1]).max()]
-        radii.append(tv.diameter / 2)
-    spread = max(abs(r - r0) for r in radii)
-    k = float(exaggeration) if exaggeration else auto_k(spread, r0)
+    k = float(exaggeration) if exaggeration else features_exaggeration(res, sub.features)
     return ThroughData(sub, sts, hv, pv, overlap, clearance, gap, Exaggeration(k, r0, r0), segments)
 
 
@@ -121,6 +114,7 @@ def through_view(res: SceneResult, subject, states=None, exaggeration: float | N
         u = res.scene.units
         _title(fig, ax, own, f"Through-view normal to datum A\n{sub.title}", fontsize)
         foot = [data.exaggeration.label(u), _state_line(res, data.states)]
+        _scale_bar(ax, data.exaggeration, u, fontsize)
         so = _second_order_note(res, data)
         if so:
             foot.append(so)
@@ -264,6 +258,7 @@ def _draw_fit(ax, res, d: ThroughData, legend, calls):
     a_, b_ = p0 * ri, p0 * ro
     ax.annotate("", xy=b_, xytext=a_, arrowprops=dict(arrowstyle="<|-|>", color=S.TEXT, lw=1.1, shrinkA=0,
                                                       shrinkB=0, mutation_scale=8), gid="gap-dim", zorder=9)
-    txt = _gap_text(u, d.clearance, interferes, "the pin does not fit", "line-to-line: zero clearance")
+    txt = _gap_text(u, d.clearance, interferes, "the pin does not fit", "line-to-line: zero clearance",
+                    GUARANTEED)
     tip = b_ if np.linalg.norm(b_) >= np.linalg.norm(a_) else a_
     calls.append((tuple(tip), txt, S.INTERFERENCE if interferes else S.TEXT, True, "gap-text"))

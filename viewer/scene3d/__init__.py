@@ -37,7 +37,7 @@ Where things live:
 Every cache here is a :class:`viewer.memo.Memo`; :func:`clear_caches` empties them all.
 """
 
-from ..exaggeration import NICE, auto_exaggeration, nice_floor
+from ..exaggeration import NICE, auto_exaggeration, nice_floor, subject_exaggeration
 from ..memo import clear_caches
 from .fit import build_feature_scene, build_mate_scene
 from .inspection import build_inspection_scene
@@ -62,5 +62,6 @@ __all__ = [
     "HIDDEN_BY_DEFAULT", "LAYERS", "N_FINE", "N_PHI", "N_PHI_CAGE", "N_Z_MATE", "NICE", "VIEWS", "Camera",
     "Label", "Layer", "LiveScene", "Scene3D", "add_to_plotter", "apply_view", "auto_exaggeration",
     "build_feature_scene", "build_inspection_scene", "build_mate_scene", "clear_caches",
-    "keep_scalar_bars_in_view", "nice_floor", "render_image", "render_variants", "section_cut", "view_scene",
+    "keep_scalar_bars_in_view", "nice_floor", "render_image", "render_variants", "section_cut",
+    "subject_exaggeration", "view_scene",
 ]

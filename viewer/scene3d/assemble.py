@@ -21,8 +21,13 @@ import pyvista as pv
 
 from geom.analysis import SceneResult
 
+from ..exaggeration import scale_text
 from ..memo import Memo, key_of
 from .values import LAYERS, Label, Layer, Scene3D, _Ex
+
+DETAIL = "zones, gaps, tilts and size differences all drawn at this factor"
+"""The 3D caption's own clause, after the common scale sentence (:func:`scale_text`)."""
+DETAIL_TRUE = "zones, gaps, tilts and size differences drawn true"
 
 
 @dataclass
@@ -117,11 +122,8 @@ def _finish(res: SceneResult, b: _Built, ex: _Ex, title: str, readouts: list[str
            bounds[:, 4].min(), bounds[:, 5].max())
     cams, scale, section = _cameras(box, direction_deg, ex.c)
     u = res.scene.units
-    if ex.k == 1.0:
-        caption = "TRUE SCALE: radial deviations x 1 (no exaggeration)"
-    else:
-        caption = (f"RADIAL DEVIATIONS x {ex.k:g}\nzones, gaps, tilts, size differences drawn x {ex.k:g} "
-                   f"about \u00d8{u.fmt(2 * ex.R0)}; lengths true")
+    words = scale_text(ex.k, ex.R0, u)
+    caption = words + "\n" + (DETAIL_TRUE if ex.k == 1.0 else DETAIL)
     return Scene3D(
         title=title,
         layers=layers,
@@ -133,6 +135,7 @@ def _finish(res: SceneResult, b: _Built, ex: _Ex, title: str, readouts: list[str
         exaggeration=ex.k,
         units=u,
         caption=caption,
+        scale_text=words,
         verdict=verdict,
         verdict_colour=verdict_colour,
         clearance=clearance,

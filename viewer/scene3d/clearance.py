@@ -31,6 +31,11 @@ from .primitives import _points, _polygon, _segments, _tube
 from .rings import _axis_at, _ring_dist, _ring_frame, _ring_point, _rings
 from .values import N_FINE, N_PHI, N_Z_MATE, Label, _Ex, _line, _surf
 
+LOCAL_GAP = "local gap at this tilt direction"
+"""The name of the 3D picture's tightest gap: it is found on the surface at the tilts as set,
+unlike the guaranteed clearance (through-view) the banner and the 2D views give."""
+LOCAL_OVERLAP = "local interference at this tilt direction"
+
 
 @dataclass(frozen=True)
 class MateSide:
@@ -123,10 +128,10 @@ def _mate_surface(b: _Built, hole: MateSide, pin: MateSide, ex: _Ex, units: Unit
     b.add("clearance", "tightest spot", _points(np.array(spot_pts)),
           dict(color=colour, point_size=16, render_points_as_spheres=True, lighting=False))
     b.add("clearance", "gap at tightest spot", _segments(np.array(ends)), _line(colour, 3.0))
-    txt = ("interference " if interferes else "tightest ") + units.fmt(c_tight, signed=True) + f" {units.value}"
+    txt = (LOCAL_OVERLAP if interferes else LOCAL_GAP) + " " + units.fmt(c_tight, signed=True) + f" {units.value}"
     txt += f" ({_per_side(units, c_tight)} a side)"
     cx = ex.c
-    for p in spot_pts:
+    for p in spot_pts[:1]:  # the same words at a second spot would be the label drawn twice
         right = (p[0] - cx[0]) * math.cos(math.radians(0)) > 0  # spot on the +x side: text runs left
         b.labels.append(Label(tuple(p), txt, S.INTERFERENCE if interferes else S.TEXT, 16, layer="clearance",
                               justify="right" if right else "left"))

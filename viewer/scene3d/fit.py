@@ -19,9 +19,9 @@ from geom.model import Feature, Kind
 from geom.placement import worst_case_axis
 
 from .. import style as S
-from ..exaggeration import auto_exaggeration
+from ..exaggeration import subject_exaggeration
 from .assemble import _Built, _exaggeration, _finish
-from .clearance import MateSide, _clearance_span, _mate_surface
+from .clearance import LOCAL_GAP, MateSide, _clearance_span, _mate_surface
 from .feature import _boundary_labels, _datum, _feature_geometry, _part, _symbol_side
 from .primitives import _block_with_hole, _polyline, _tube
 from .rings import _axis_at, _rings
@@ -44,7 +44,7 @@ def build_mate_scene(res: SceneResult, mate_index: int, states: dict[str, Featur
     hs = states.get(hole.id) or worst_case_state(hole, True)
     ps = states.get(pin.id) or worst_case_state(pin, True)
     worst = hs == worst_case_state(hole, True) and ps == worst_case_state(pin, True)
-    k = _exaggeration(exaggeration, lambda: auto_exaggeration(res, mate_index=mate_index))
+    k = _exaggeration(exaggeration, lambda: subject_exaggeration(res, mate_index=mate_index))
     centre = hole.at
     ex = _Ex(k, centre, hole.mmc / 2.0)
     b = _Built()
@@ -85,7 +85,7 @@ def build_mate_scene(res: SceneResult, mate_index: int, states: dict[str, Featur
         lines.append(f"clearance = opening(hole) - envelope(pin) = {u.fmt(effective_size(hole, hs))} - "
                      f"{u.fmt(effective_size(pin, ps))} = {u.fmt(c_formula, signed=True)} {u.value}")
     if abs(c_tight - c_formula) >= 0.5 * 10 ** -u.decimals:
-        lines.append(f"tightest on the picture (tilts as set): {u.fmt(c_tight, signed=True)} {u.value}")
+        lines.append(f"{LOCAL_GAP} (on the picture): {u.fmt(c_tight, signed=True)} {u.value}")
     mmc = term("mmc", std)[0]
     lines.append(f"(from sizes alone: {u.fmt(mr.clearance_min_size, signed=True)} {u.value}, hole {mmc} - pin {mmc})")
     for f, side in ((hole, res.features[hole.id].inner_boundary), (pin, res.features[pin.id].outer_boundary)):
@@ -182,7 +182,7 @@ def build_feature_scene(res: SceneResult, feature_id: str, state: FeatureState |
     f = sc.feature(feature_id)
     st = state or worst_case_state(f)
     worst = st == worst_case_state(f)
-    k = _exaggeration(exaggeration, lambda: auto_exaggeration(res, feature_id=feature_id))
+    k = _exaggeration(exaggeration, lambda: subject_exaggeration(res, feature_id=feature_id))
     centre = f.at
     ex = _Ex(k, centre, f.mmc / 2.0)
     b = _Built()

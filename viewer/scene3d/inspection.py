@@ -209,9 +209,7 @@ def build_inspection_scene(res: SceneResult, insp, exaggeration: float | None = 
     verdicts, headline, head_colour = _verdict_lines(b, insp)
     sc3 = _finish(res, b, ex, sc.title, lines, headline, head_colour, direction_deg, "inspection", (f.id,), {},
                   bar=bar)
-    if k == 1.0:
-        caption = "TRUE SCALE\nradial deviations x 1 (no exaggeration)"
-    else:
-        caption = (f"RADIAL DEVIATIONS x {k:g}\ndeviations, sizes, offsets drawn x {k:g} about "
-                   f"\u00d8{u.fmt(2 * ex.R0)}; lengths, colours, numbers true")
+    detail = ("deviations, sizes, offsets, colours and numbers true" if k == 1.0 else
+              "deviations, sizes, offsets drawn at this factor; colours and numbers true")
+    caption = sc3.scale_text + "\n" + detail
     return replace(sc3, caption=caption, verdicts=tuple(verdicts))

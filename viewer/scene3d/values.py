@@ -81,7 +81,8 @@ class Scene3D:
     cameras: dict[str, Camera]  # view -> (position, focal point, view up)
     exaggeration: float  # radial exaggeration k (1.0: true geometry)
     units: Units
-    caption: str = ""  # "radial deviations x k" statement
+    caption: str = ""  # the scale sentence (first line), then the 3D picture's own clause
+    scale_text: str = ""  # the scale sentence alone: viewer.exaggeration.scale_text, as in the 2D views
     verdict: str = ""
     verdict_colour: str = S.TEXT
     clearance: float | None = None  # what-if worst clearance (true, diametral) in scene units
