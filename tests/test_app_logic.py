@@ -56,7 +56,8 @@ def test_window_logic_loads_no_qt():
     code = ("import viewer.windowlogic.banner, viewer.windowlogic.editing, viewer.windowlogic.export, "
             "viewer.windowlogic.fields, viewer.windowlogic.focus, viewer.windowlogic.inspection, "
             "viewer.windowlogic.looks, viewer.windowlogic.points, viewer.windowlogic.readouts, "
-            "viewer.windowlogic.whatif, sys\n"
+            "viewer.windowlogic.whatif, viewer.windowlogic.layers, viewer.windowlogic.messages, "
+            "viewer.windowlogic.teaching, sys\n"
             "print(' '.join(sorted({m.split('.')[0] for m in sys.modules})))")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, timeout=120)
     assert out.returncode == 0, out.stderr
@@ -463,3 +464,118 @@ def test_caption_band_and_table_text():
     assert (band.min(axis=2) < 128).any()  # ... with dark type on it
     assert (out[:40] == 0).all()  # the picture above is untouched
     assert table_tsv(["a", "b"], [["x\ty", "line\nbreak"]]) == "a\tb\nx y\tline break\n"
+
+
+# ---------------------------------------------------------------- issue 12: window details
+
+
+def test_layer_rows_list_only_the_layers_of_the_scene_with_the_legend_colours():
+    from viewer import scene3d
+    from viewer.windowlogic.layers import layer_rows
+
+    sc, res = _gearbox()
+    sc3 = scene3d.build_mate_scene(res, 0)
+    rows = layer_rows(sc3, scene3d.LAYERS, sc.standard)
+    listed = [r.layer for r in rows]
+    # independent: a layer is listed when the scene holds a mesh or a label for it (or readout
+    # lines / a legend; "labels" switches every label), in the builder's layer order
+    have = {n for n, items in sc3.layers.items() if items} | {lb.layer for lb in sc3.labels}
+    have |= {"labels"} if sc3.labels else set()
+    have |= {"readouts"} if sc3.readouts else set()
+    have |= {"legend"} if sc3.legend else set()
+    assert listed == [n for n in scene3d.LAYERS if n in have]
+    assert "points" not in listed and "envelopes" not in listed  # a fit scene has no measured data
+    by = {r.layer: r for r in rows}
+    # each row's swatches are the colours of its legend rows, read from the scene's legend
+    for layer in ("vc", "zone", "mate"):
+        expect = [c for (_t, c), lay in zip(sc3.legend, sc3.legend_layers) if lay == layer]
+        assert list(by[layer].colours) == list(dict.fromkeys(expect)) and expect
+    assert by["vc"].name == "VC boundary" and by["labels"].colours == ()
+    # a layer with no meshes and no labels left is not listed
+    bare = replace(sc3, layers={k: v for k, v in sc3.layers.items() if k != "rc"},
+                   labels=tuple(lb for lb in sc3.labels if lb.layer != "rc"),
+                   legend=tuple(r for r, lay in zip(sc3.legend, sc3.legend_layers) if lay != "rc"),
+                   legend_layers=tuple(lay for lay in sc3.legend_layers if lay != "rc"))
+    assert "rc" in listed and "rc" not in [r.layer for r in layer_rows(bare, scene3d.LAYERS, sc.standard)]
+
+
+def test_the_new_scene_assembles_with_room_to_spare():
+    res = analyse_scene(editing.new_scene())
+    m = res.mates[0]
+    # hole VC = MMC - t = 10.000 - 0.050; pin VC = MMC + t = 9.920 + 0.010 (ASME Y14.5 virtual
+    # condition at MMC, from memory); clearance = hole VC - pin VC = 0.020
+    assert m.clearance_min == pytest.approx((10.0 - 0.05) - (9.92 + 0.01))
+    assert m.clearance_min > 0 and m.assembles
+    b = banner.mate_banner(res, res.scene, 0, whatif.settled_states(res.scene, {}))  # at the worst case
+    assert b.state == "assembles" and b.head.startswith("ASSEMBLES")
+
+
+@pytest.mark.parametrize("lo, hi, units", [(8.0, 8.015, MM), (0.25, 0.25015, Units("in")),
+                                          (40.0, 40.039, MM), (0.5, 0.5012, Units("in"))])
+def test_size_slider_steps_one_display_digit(lo, hi, units):
+    step = 10.0 ** -units.decimals  # one digit of the usual precision: 0.001 mm, 0.0001 in
+    n, per = whatif.size_slider_plan(lo, hi, step)
+    assert n >= whatif.SLIDER_POSITIONS and n % 2 == 0
+    assert whatif.slider_size(lo, hi, step, per, 0, n) == lo and whatif.slider_size(lo, hi, step, per, n, n) == hi
+    for k in range(int((hi - lo) / step + 1e-9)):  # every whole key step lands on a display digit
+        v = whatif.slider_size(lo, hi, step, per, k * per, n)
+        assert v == pytest.approx(lo + k * step, abs=1e-12)
+        assert units.fmt(v) == f"{lo + k * step:.{units.decimals}f}"
+    assert whatif.slider_size(lo, hi, step, per, n // 2, n) == pytest.approx(lo + n // 2 * step / per)
+
+
+def test_a_rejected_edit_speaks_the_form_labels():
+    from viewer.windowlogic.messages import edit_message, field_label
+
+    sc, _ = _gearbox()
+
+    def refused(mutate):
+        d = editing.scene_dict(sc)
+        mutate(d)
+        with pytest.raises(SceneError) as e:
+            editing.parse_dict(d, str(GEARBOX))
+        return e.value
+
+    e = refused(lambda d: d["feature"][0]["tolerance"].__setitem__("value", -0.02))
+    assert '"cap-bore"' in e.path and e.path.endswith("tolerance.value")  # the file path form ...
+    assert edit_message(e) == f"Cap-bore: tolerance value: {e.detail}"  # ... said as the form's words
+    assert "feature[" not in edit_message(e) and GEARBOX.name not in edit_message(e)
+    e = refused(lambda d: d["feature"][0]["limits"].__setitem__(0, "abc"))
+    assert edit_message(e) == f"Cap-bore: size limits, first value: {e.detail}"
+    e = refused(lambda d: d["feature"][1]["tolerance"].__setitem__("datums", ["A", 1]))
+    assert edit_message(e).startswith("Dowel: datums")
+    e = refused(lambda d: d["mate"][0].__setitem__("hole", "nothing"))
+    assert edit_message(e) == f"Mate 1: hole: {e.detail}"
+    e = refused(lambda d: d.__setitem__("units", "furlong"))
+    assert edit_message(e) == f"Units: {e.detail}"
+    # a path no form shows keeps the command line's words (file, path, message)
+    e = refused(lambda d: d.__setitem__("zzz", 1))
+    assert edit_message(e) == str(e)
+    assert field_label("feature[0].at[1]") == "Feature 1: basic location y"
+
+
+def test_lesson_steps_the_hole_to_mmc_then_lmc_then_both_at_the_vc():
+    import tomllib
+
+    from viewer.windowlogic.teaching import lesson_steps
+
+    sc, _ = _gearbox()
+    raw = tomllib.loads(GEARBOX.read_text(encoding="utf-8"))["feature"][0]  # cap-bore, 8.000 .. 8.015
+    fid, steps = lesson_steps(sc, ("mate", 0))
+    assert fid == "cap-bore" and len(steps) == 3
+    assert [s.state.size for s in steps] == [raw["limits"][0], raw["limits"][1], raw["limits"][1]]
+    assert all(s.state.share == 1.0 for s in steps)
+    t = raw["tolerance"]["value"]
+    vc = raw["limits"][0] - t  # hole VC = MMC - t (ASME Y14.5, from memory) = 7.985
+    # at MMC the opening is MMC - t; at LMC it is LMC - (t + bonus) with bonus = LMC - MMC
+    assert steps[0].note.endswith(f"= {MM.fmt(raw['limits'][0] - t)}")
+    lmc_used = t + (raw["limits"][1] - raw["limits"][0])
+    assert steps[1].note.endswith(f"= {MM.fmt(raw['limits'][1] - lmc_used)}")
+    assert steps[2].note.endswith(f"the opening stays at the VC {MM.fmt(vc)}")
+    # the pin looked at alone: its envelope; a scene under ISO says MMVS; no lesson off MMC
+    _, pin_steps = lesson_steps(sc, ("feature", "dowel"))
+    assert "the envelope stays at the VC" in pin_steps[2].note
+    iso = replace(sc, standard=type(sc.standard)("iso"))
+    assert "stays at the MMVS" in lesson_steps(iso, ("mate", 0))[1][2].note
+    assert lesson_steps(load(FLANGE), ("mate", 0)) is None  # the flange's adaptor bore is RFS
+    assert lesson_steps(sc, ("fastener", "x")) is None

@@ -270,7 +270,9 @@ def test_slider_moves_keep_the_3d_actors_and_their_text_follows(qtbot):
 # ---------------------------------------------------------------- bad input
 
 
-def _expected_message(scene, path, mutate) -> str:
+def _expected_message(scene, path, mutate, label) -> str:
+    """The scene rules' message for the edit (what the CLI says), the field named as the form
+    labels it (issue 12: the window speaks the form's words, not the file path syntax)."""
     from geom.scenefile import SceneError
     from viewer.app.model import parse_dict, scene_dict
 
@@ -278,15 +280,16 @@ def _expected_message(scene, path, mutate) -> str:
     mutate(d)
     with pytest.raises(SceneError) as e:
         parse_dict(d, path)
-    return str(e.value)
+    return f"{label}: {e.value.detail}"
 
 
-@pytest.mark.parametrize("field,text,mutate", [
-    ("tolerance.value", "-0.02", lambda d: d["feature"][0]["tolerance"].__setitem__("value", -0.02)),
-    ("limits[0]", "abc", lambda d: d["feature"][0]["limits"].__setitem__(0, "abc")),
-    ("limits[1]", "7.9", lambda d: d["feature"][0]["limits"].__setitem__(1, 7.9)),  # reversed
+@pytest.mark.parametrize("field,text,mutate,label", [
+    ("tolerance.value", "-0.02", lambda d: d["feature"][0]["tolerance"].__setitem__("value", -0.02),
+     "Cap-bore: tolerance value"),
+    ("limits[0]", "abc", lambda d: d["feature"][0]["limits"].__setitem__(0, "abc"), "Cap-bore: size limits, first value"),
+    ("limits[1]", "7.9", lambda d: d["feature"][0]["limits"].__setitem__(1, 7.9), "Cap-bore: size limits"),  # reversed
 ])
-def test_invalid_value_marks_the_field_and_keeps_the_scene(qtbot, field, text, mutate):
+def test_invalid_value_marks_the_field_and_keeps_the_scene(qtbot, field, text, mutate, label):
     win = _open(qtbot)
     m = win.model
     m.set_focus("feature", "cap-bore")
@@ -295,7 +298,8 @@ def test_invalid_value_marks_the_field_and_keeps_the_scene(qtbot, field, text, m
     w = form.fields[field]
     w.setText(text)
     w.editingFinished.emit()
-    expected = _expected_message(before, m.path, mutate)  # the CLI's rules, same text
+    expected = _expected_message(before, m.path, mutate, label)  # the CLI's rules, the form's words
+    assert "feature[" not in expected
     assert form.error_label.text() == expected
     assert win.messages.text().endswith(expected)
     assert "c62828" in w.styleSheet()  # red border

@@ -117,9 +117,10 @@ def test_rejected_typed_value_stops_the_save_and_keeps_the_file(qtbot, tmp_path)
         parse_dict(d, m.path)
     assert not win.file_save()
     assert path.read_bytes() == before  # nothing written
-    assert str(e.value) in win.messages.text() and "nothing was written" in win.messages.text()
+    said = f"Cap-bore: tolerance value: {e.value.detail}"  # the rule's message, the form's label for the field
+    assert said in win.messages.text() and "nothing was written" in win.messages.text()
     assert w.text() == "-0.02" and "c62828" in w.styleSheet()  # the typed text stays, marked
-    assert win.feature_form.error_label.text() == str(e.value)
+    assert win.feature_form.error_label.text() == said
     # closing asks (the typed value is not in the scene); Cancel keeps the window and the text
     win.confirm = lambda: "cancel"
     win.close()

@@ -72,7 +72,11 @@ def build_menus(win) -> None:
         for i, (v, b) in enumerate(win.view3d.view_buttons.items()):
             add(vm, f"view_{v}", f"Camera: {b.text()}", lambda v=v: win.view3d.set_view(v), f"Ctrl+{i + 1}")
         vm.addSeparator()
-        lm = vm.addMenu("Layers")
+        from .panels.layers import StayOpenMenu
+
+        lm = StayOpenMenu("Layers", vm)  # stays open while layers are toggled
+        vm.addMenu(lm)
+        win.layers_menu = lm
         for a in win.view3d.layer_actions.values():
             lm.addAction(a)
 

@@ -33,6 +33,7 @@ from viewer.windowlogic.editing import (
     scene_dict,
     scene_label,
 )
+from viewer.windowlogic.messages import edit_message
 from viewer.windowlogic.points import (
     has_measured,
     inspection_errors,
@@ -371,7 +372,7 @@ class SceneModel(QObject):
                 self._recording = False
             if err is not None:
                 self.inspectionBusy.emit(False)
-                self.message.emit("error", str(err))
+                self.message.emit("error", edit_message(err))
                 self.inspectionFinished.emit(False)
                 return
             req["key"] = self._key(fid, None)

@@ -2,59 +2,26 @@
 focus, from :mod:`viewer.scene3d`. A what-if move keeps the actors: the view hands each new
 scene to its :class:`viewer.scene3d.LiveScene`, which puts it into the existing actors in place
 (new meshes by shallow copy, new label and readout strings and anchor points) and makes actors
-anew only when the scene's structure changes. The legend is shown as Qt text under the picture.
+anew only when the scene's structure changes. The legend is shown under the picture, merged with
+the layer toggles (:class:`.panels.layers.LayerList`).
 """
 
 from __future__ import annotations
 
 import time
 from dataclasses import replace
-from html import escape as _html_escape
 
 import numpy as np
 from PyQt5.QtCore import QEvent, QObject, QTimer, pyqtSignal
-from PyQt5.QtWidgets import QHBoxLayout, QLabel, QMenu, QToolButton, QVBoxLayout, QWidget
+from PyQt5.QtWidgets import QHBoxLayout, QLabel, QToolButton, QVBoxLayout, QWidget
+
+from viewer.windowlogic.layers import LAYER_NAMES, layer_name, layer_rows
 
 from .model import SceneModel
+from .panels.layers import LayerList, StayOpenMenu
 from .views import DrawError, draw_problem
 
-# names shown for the scene's layers (the builder's own names are the keys)
-LAYER_NAMES = {
-    "part": "Part",
-    "datum": "Datum A",
-    "zone": "Tolerance zone",
-    "zone_axis": "Zone axis",
-    "axis": "Worst-case axis",
-    "surface": "Feature surface",
-    "vc": "VC boundary",
-    "rc": "RC boundary",
-    "mate": "Mating part",
-    "clearance": "Clearance colouring",
-    "projected": "Projected zone",
-    "points": "Measured points",
-    "median_line": "Median line",
-    "envelopes": "Mating envelopes",
-    "labels": "Labels",
-    "readouts": "Numbers on the picture",
-    "legend": "Colour legend",
-}
-
-
-# the names that depend on the standard's terms (geom.analysis.term): ASME VC, ISO MMVS / LMVS ...
-def layer_name(name: str, standard) -> str:
-    """The Layers-menu name of a scene layer, in the scene's standard's terms."""
-    from geom.analysis import term
-    from geom.model import Standard
-
-    if name == "vc":
-        vc = {term("vc_MMC", standard)[0], term("vc_LMC", standard)[0]}
-        return " / ".join(sorted(vc)) + " boundary"
-    if name == "rc":
-        return f"{term('rc', standard)[0]} boundary"
-    if name == "envelopes":
-        return "Mating envelopes" if standard is Standard.ASME else "Associated cylinders"
-    return LAYER_NAMES.get(name, name)
-
+__all__ = ["LAYER_NAMES", "View3D", "layer_name"]
 
 HIDDEN_IN_WINDOW = {"readouts"}  # the window's readout table shows these numbers already
 WINDOW_CENTRE = (0.0, 0.05)  # camera window centre in the window: centred, a little low (labels above)
@@ -114,7 +81,7 @@ class View3D(QWidget):
         self.layer_button = QToolButton()
         self.layer_button.setText("Layers ▾")
         self.layer_button.setPopupMode(QToolButton.InstantPopup)
-        self.layer_menu = QMenu(self)
+        self.layer_menu = StayOpenMenu(self)  # open while layers are toggled
         self.layer_actions = {}
         for name in scene3d.LAYERS:
             a = self.layer_menu.addAction(layer_name(name, model.scene.standard))
@@ -141,10 +108,8 @@ class View3D(QWidget):
         self._paint_filter = _PaintFresh(self)
         self.plotter.interactor.installEventFilter(self._paint_filter)
         lay.addWidget(self.plotter.interactor, 1)
-        self.legend = QLabel()
-        self.legend.setWordWrap(True)
-        self.legend.setToolTip("What the colours in the 3D view mean")
-        lay.addWidget(self.legend)
+        self.layer_list = LayerList(self.layer_actions)  # the legend and the layer toggles, merged
+        lay.addWidget(self.layer_list)
         self.visible: set[str] = {n for n, a in self.layer_actions.items() if a.isChecked()}
         self.live = scene3d.LiveScene(self.plotter)  # the actors on the plotter, updated in place
         self.current = None  # Scene3D shown
@@ -272,7 +237,7 @@ class View3D(QWidget):
         kind, key = self.model.focus
         self.caption.setText(f"{kind} {key}: no 3D picture; its schematic is in the 2D view, its numbers "
                              "in the readouts" if key is not None else "nothing to show")
-        self.legend.setVisible(False)
+        self.layer_list.setVisible(False)
         self.render()
         self.rendered.emit()
 
@@ -346,18 +311,17 @@ class View3D(QWidget):
         return False if self.closed else self.scene3d_mod.keep_scalar_bars_in_view(self.plotter)
 
     def _update_legend(self, shown) -> None:
+        """The in-picture legend box stays hidden (unreadably small in a window-sized view; the
+        clearance colour bar stays); the layer list under the view shows its rows instead, one per
+        layer of the scene shown, with its checkbox."""
         p = self.plotter
         bars = {id(b) for b in p.scalar_bars.values()}
         for a in self.actors.get("legend", []):
             if id(a) not in bars:
                 a.SetVisibility(False)
-        rows = [(lbl, col) for (lbl, col), layer in zip(shown.legend, shown.legend_layers)
-                if layer in self.visible]
-        text = "  ".join(f"<span style='color:{col}; font-size:14pt'>■</span>&nbsp;{_html_escape(lbl)}"
-                         for lbl, col in rows) if "legend" in self.visible else ""
-        if text != self.legend.text():
-            self.legend.setText(text)
-        self.legend.setVisible("legend" in self.visible and bool(rows))
+        sc3 = self.current if self.current is not None else shown
+        self.layer_list.set_rows(layer_rows(sc3, self.scene3d_mod.LAYERS, self.model.scene.standard))
+        self.layer_list.setVisible(bool(self.layer_list.rows))
 
     # ------------------------------------------------------------ camera and layers
 

@@ -25,6 +25,7 @@ from PyQt5.QtWidgets import (
 )
 
 from geom.scenefile import SceneError, load
+from viewer.windowlogic.messages import edit_message
 
 from . import glyphs
 from .exports import ExportActions
@@ -231,7 +232,7 @@ class MainWindow(ExportActions, QMainWindow):
         err = self.commit_typing()
         if err is None:
             return True
-        self.model.message.emit("error", f"{what}: not done, a typed value is not accepted: {err}. Correct it "
+        self.model.message.emit("error", f"{what}: not done, a typed value is not accepted: {edit_message(err)}. Correct it "
                                          "(or discard it) and try again; nothing was written")
         return False
 

@@ -36,7 +36,9 @@ def parse_dict(data: dict, path: str | None) -> Scene:
 
 
 def new_scene() -> Scene:
-    """A small valid scene to start from (File > New): one hole, one pin, one mate."""
+    """A small valid scene to start from (File > New): one hole, one pin, one mate that
+    assembles with room to spare in the worst case: the hole's VC 10.000 - 0.050 = 9.950
+    against the pin's VC 9.920 + 0.010 = 9.930, a clearance of 0.020."""
     data = {
         "title": "Untitled fit",
         "units": "mm",
@@ -46,7 +48,7 @@ def new_scene() -> Scene:
             {"id": "hole-1", "kind": "hole", "limits": [10.0, 10.02], "length": 10.0,
              "tolerance": {"characteristic": "position", "value": 0.05, "material": "MMC",
                            "datums": ["A", "B", "C"]}},
-            {"id": "pin-1", "kind": "pin", "limits": [9.96, 9.98], "length": 10.0,
+            {"id": "pin-1", "kind": "pin", "limits": [9.90, 9.92], "length": 10.0,
              "tolerance": {"characteristic": "perpendicularity", "value": 0.01, "material": "MMC",
                            "datums": ["A"]}},
         ],
@@ -108,7 +110,7 @@ def new_feature(scene: Scene, kind: str) -> tuple[str, dict]:
     while f"{kind}-{n}" in ids:
         n += 1
     fid = f"{kind}-{n}"
-    lim = [10.0, 10.02] if kind == "hole" else [9.96, 9.98]
+    lim = [10.0, 10.02] if kind == "hole" else [9.90, 9.92]  # those of the new scene's pair
     ref = next((f for f in scene.features if f.kind.value == kind), None)
     length = ref.length if ref else 10.0
     if ref:

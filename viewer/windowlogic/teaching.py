@@ -1,6 +1,7 @@
 """The teaching sweep as the window plays and exports it, without Qt: which feature a focus
 sweeps (a mate's hole, the feature looked at, or the lone feature), the steps the play control
-walks through (:func:`geom.sweep.size_sweep`), the default file names of the exports, and the
+walks through (:func:`geom.sweep.size_sweep`), the three steps of the lesson (MMC, LMC, both:
+the opening stays at the VC), the default file names of the exports, and the
 sweep export job the window runs in a separate process (``python -m viewer.windowlogic.teaching``,
 like the report: the off-screen renderer stays apart from the window's OpenGL context).
 
@@ -15,9 +16,12 @@ from __future__ import annotations
 import re
 import signal
 import sys
+from dataclasses import dataclass
 from pathlib import Path
 
-from geom.model import Scene
+from geom import boundaries as B
+from geom.analysis import term
+from geom.model import Kind, Material, Scene
 from geom.sweep import SweepStep, size_sweep
 
 PLAY_STEPS = 25  # the play control's default number of steps (the report's sweep has as many)
@@ -55,6 +59,54 @@ def play_steps(scene: Scene, focus: tuple[str, object], steps: int = PLAY_STEPS,
     subject, fid = target
     in_mate = isinstance(subject, int)
     return fid, size_sweep(scene.feature(fid), int(steps), float(turns), role_in_mate=in_mate)
+
+
+@dataclass(frozen=True)
+class LessonStep:
+    """One step of the three-step lesson: the what-if state set and the note shown with it."""
+
+    state: B.FeatureState
+    note: str
+
+
+def lesson_target(scene: Scene, focus: tuple[str, object]) -> str | None:
+    """The feature the lesson steps: the focused mate's hole (or the feature looked at), when its
+    tolerance is at MMC (where the boundary presented stays put); None otherwise."""
+    target = sweep_target(scene, focus)
+    if target is None:
+        return None
+    f = scene.feature(target[1])
+    if f.tolerance is None or f.tolerance.material is not Material.MMC:
+        return None
+    return f.id
+
+
+def lesson_steps(scene: Scene, focus: tuple[str, object]) -> tuple[str, tuple[LessonStep, ...]] | None:
+    """(feature id, three steps) of the lesson, or None (:func:`lesson_target`): the feature at
+    MMC with all of its tolerance used, then at LMC with all of the larger tolerance used, then
+    both side by side: the opening (a pin: its envelope) is the VC at either size. Every number
+    comes from geom.boundaries; the last step keeps the LMC state in the views."""
+    fid = lesson_target(scene, focus)
+    if fid is None:
+        return None
+    f = scene.feature(fid)
+    u, st = scene.units, scene.standard
+    in_mate = any(fid in (m.hole, m.pin) for m in scene.mates)
+    turn = B.worst_case_state(f, in_mate).direction_deg
+    mm, lm, vc_t, bname = term("mmc", st)[0], term("lmc", st)[0], term("vc_MMC", st)[0], term("bonus", st)[0]
+    what = "opening" if f.kind is Kind.HOLE else "envelope"
+    vc = B.virtual_condition(f)
+    states = (B.FeatureState(f.mmc, 1.0, turn), B.FeatureState(f.lmc, 1.0, turn))
+    eff = [B.effective_size(f, s) for s in states]
+    ta = [B.tolerance_allowed(f, s.size) for s in states]
+    sign = "-" if f.kind is Kind.HOLE else "+"
+    first = (f"1/3 {fid} at {mm} {u.fmt(f.mmc)}, all of t {u.fmt(ta[0])} used: the {what} is "
+             f"{u.fmt(f.mmc)} {sign} {u.fmt(ta[0])} = {u.fmt(eff[0])}")
+    second = (f"2/3 {fid} at {lm} {u.fmt(f.lmc)}: {bname} {u.fmt(B.bonus(f, f.lmc))}, so "
+              f"{u.fmt(ta[1])} may be used: the {what} is {u.fmt(f.lmc)} {sign} {u.fmt(ta[1])} = {u.fmt(eff[1])}")
+    both = (f"3/3 both: at {mm} {u.fmt(eff[0])}, at {lm} {u.fmt(eff[1])}: "
+            f"the {what} stays at the {vc_t} {u.fmt(vc)}")
+    return fid, (LessonStep(states[0], first), LessonStep(states[1], second), LessonStep(states[1], both))
 
 
 def subject_label(scene: Scene, subject: int | str) -> str:

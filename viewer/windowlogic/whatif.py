@@ -4,6 +4,7 @@ comes from geom; here it is only put into words."""
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 from geom import boundaries as B
@@ -53,6 +54,42 @@ def settled_states(scene: Scene, old: dict[str, B.FeatureState]) -> dict[str, B.
         else:
             states[f.id] = B.worst_case_state(f, f.id in in_mate)
     return states
+
+
+SLIDER_POSITIONS = 1000  # at least this many slider positions: a drag moves smoothly
+
+
+def size_slider_plan(lo: float, hi: float, step: float, least: int = SLIDER_POSITIONS) -> tuple[int, int]:
+    """(positions, positions per step) of a size slider from ``lo`` to ``hi`` whose keyboard step
+    is ``step`` (one display digit of the scene's units, ``10 ** -Units.decimals``): a whole
+    number of positions per step, at least ``least`` positions in all, an even number of them
+    (the middle position is the middle size when the span is a whole number of steps).
+
+    >>> size_slider_plan(8.0, 8.015, 0.001)  # 15 steps of 0.001 mm, 68 positions each
+    (1020, 68)
+    >>> size_slider_plan(0.25, 0.25015, 0.0001)  # 1.5 steps of 0.0001 in: the last one is cut short
+    (1002, 668)
+    """
+    span = hi - lo
+    if span <= 0 or step <= 0:
+        return 0, 1
+    steps = span / step
+    per = max(1, math.ceil(least / steps - 1e-9))
+    while math.ceil(steps * per - 1e-6) % 2:
+        per += 1
+    return math.ceil(steps * per - 1e-6), per
+
+
+def slider_size(lo: float, hi: float, step: float, per: int, pos: int, positions: int) -> float:
+    """The size at slider position ``pos`` of :func:`size_slider_plan`'s slider (``hi`` at the
+    last position).
+
+    >>> slider_size(8.0, 8.015, 0.001, 68, 68 * 4, 1020), slider_size(8.0, 8.015, 0.001, 68, 1020, 1020)
+    (8.004, 8.015)
+    """
+    if pos >= positions:
+        return hi
+    return min(lo + round(pos * step / per, 12), hi)
 
 
 # ---------------------------------------------------------------- readout rows

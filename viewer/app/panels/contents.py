@@ -17,6 +17,7 @@ from PyQt5.QtWidgets import (
 
 from geom.scenefile import SceneError
 from viewer.windowlogic.editing import contents_entries, new_feature, new_mate, removal
+from viewer.windowlogic.messages import edit_message
 
 from ..model import SceneModel
 
@@ -75,7 +76,7 @@ class ContentsList(QWidget):
 
     def _report(self, err: SceneError | None) -> None:
         if err is not None:
-            self.model.message.emit("error", str(err))
+            self.model.message.emit("error", edit_message(err))
 
     def _add(self, kind: str) -> None:
         fid, entry = new_feature(self.model.scene, kind)

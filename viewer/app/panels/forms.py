@@ -11,6 +11,7 @@ from PyQt5.QtWidgets import QComboBox, QFormLayout, QLabel, QLineEdit, QWidget
 from geom.model import Standard, Units
 from geom.readout import STANDARD_NAME
 from geom.scenefile import SceneError
+from viewer.windowlogic.messages import edit_message
 
 from ..model import SceneModel
 from .common import BAD_RED, ERROR_STYLE, combo, set_combo
@@ -18,7 +19,8 @@ from .common import BAD_RED, ERROR_STYLE, combo, set_combo
 
 class Form(QWidget):
     """A form whose fields are committed together through the scene rules. A rejected value
-    keeps its text, gets a red border and the rule's message beside it; the scene stays."""
+    keeps its text, gets a red border and the rule's message beside it, the field named by its
+    label on the form (:func:`viewer.windowlogic.messages.edit_message`); the scene stays."""
 
     def __init__(self, model: SceneModel, parent=None):
         super().__init__(parent)
@@ -58,9 +60,10 @@ class Form(QWidget):
         if w is not None:
             w.setStyleSheet(ERROR_STYLE)
             self.bad = w
-        self.error_label.setText(str(err))
+        text = edit_message(err)  # the form's words for the field, then the rule's message
+        self.error_label.setText(text)
         self.error_label.show()
-        self.model.message.emit("error", str(err))
+        self.model.message.emit("error", text)
 
     def field_for(self, err: SceneError) -> str | None:
         """The field a rule's path names, if this form has it."""

@@ -21,6 +21,7 @@ from PyQt5.QtWidgets import (
 from geom.analysis import term
 from geom.model import Units, Zone
 from viewer.windowlogic.fields import length_decimals
+from viewer.windowlogic.whatif import SLIDER_POSITIONS, size_slider_plan, slider_size
 
 from ..model import SceneModel
 from .inspection import InspectionControls
@@ -30,8 +31,8 @@ from .play import PlayBar
 class LengthSpin(QDoubleSpinBox):
     """A spin box that shows a length with at least ``display`` decimals (those that keep the
     feature's limits apart, :func:`length_decimals`), and more where a value needs them not to be
-    hidden (:meth:`geom.model.Units.digits`); finer typed values are kept (the exact value is in
-    the tooltip)."""
+    hidden (:meth:`geom.model.Units.digits`); finer typed values are kept. Its tooltip is its
+    text."""
 
     def __init__(self, display: int, units: Units | None = None, parent=None):
         super().__init__(parent)
@@ -39,7 +40,7 @@ class LengthSpin(QDoubleSpinBox):
         self.units = units
         extra = 3  # Units.digits extends a value by up to three decimals
         self.setDecimals(max(6, display + extra, (units.decimals if units else 0) + extra))
-        self.valueChanged.connect(lambda v: self.setToolTip(f"{v:.{self.decimals()}f}".rstrip("0").rstrip(".")))
+        self.valueChanged.connect(lambda _v: self.setToolTip(self.text()))
 
     def textFromValue(self, v: float) -> str:
         k = max(self.display, self.units.digits(v)) if self.units is not None else self.display
@@ -50,7 +51,7 @@ class _SliderSpin(QWidget):
     """A slider for sweeping plus a spin box for an exact value, kept in step."""
 
     valueChanged = pyqtSignal(float)
-    STEPS = 1000
+    STEPS = SLIDER_POSITIONS  # slider positions (a length slider: an instance value, see below)
 
     def __init__(self, lo: float, hi: float, decimals: int, suffix: str = "", left="", right="", parent=None,
                  length: bool = False, units: Units | None = None):
@@ -59,7 +60,14 @@ class _SliderSpin(QWidget):
         lay = QGridLayout(self)
         lay.setContentsMargins(0, 0, 0, 0)
         self.slider = QSlider(Qt.Horizontal)
+        # a length slider steps one display digit of the units (10 ** -Units.decimals) per key
+        # press, ten per page; the others a thousandth of their range
+        self.step = 10.0 ** -units.decimals if length and units is not None else (hi - lo) / self.STEPS
+        self.STEPS, self.per = size_slider_plan(lo, hi, self.step) if self.step > 0 else (self.STEPS, 1)
         self.slider.setRange(0, self.STEPS)
+        self.slider.setSingleStep(self.per)
+        self.slider.setPageStep(10 * self.per)
+        self.length = length
         if length:  # shown at ``decimals``, finer typed values kept; steps of the last shown digit
             self.spin = LengthSpin(decimals, units)
             self.spin.setSingleStep(10.0 ** -decimals)
@@ -85,10 +93,11 @@ class _SliderSpin(QWidget):
         self.spin.valueChanged.connect(self._from_spin)
 
     def _from_slider(self, pos: int) -> None:
-        v = self.lo + (self.hi - self.lo) * pos / self.STEPS
+        v = slider_size(self.lo, self.hi, self.step, self.per, pos, self.STEPS) if self.step > 0 else self.lo
         self.spin.blockSignals(True)
         self.spin.setValue(v)
         self.spin.blockSignals(False)
+        self._tips()
         self.valueChanged.emit(v)
 
     def _from_spin(self, v: float) -> None:
@@ -97,9 +106,16 @@ class _SliderSpin(QWidget):
 
     def _place_slider(self, v: float) -> None:
         self.slider.blockSignals(True)
-        span = self.hi - self.lo
-        self.slider.setValue(round((v - self.lo) / span * self.STEPS) if span else 0)
+        self.slider.setValue(min(round((v - self.lo) / self.step * self.per), self.STEPS) if self.step > 0 else 0)
         self.slider.blockSignals(False)
+        self._tips()
+
+    def _tips(self) -> None:
+        """A length's tooltips (slider and spin box) are the spin box's text (Units.fmt's digits)."""
+        if self.length:
+            text = self.spin.text()
+            self.slider.setToolTip(text)
+            self.spin.setToolTip(text)
 
     def set_value(self, v: float) -> None:
         self.spin.blockSignals(True)
@@ -128,7 +144,7 @@ class FeatureControls(QGroupBox):
         self.size = _SliderSpin(min(f.mmc, f.lmc), max(f.mmc, f.lmc), length_decimals(u, f.mmc, f.lmc),
                                 f" {u.value}", f"{mm} {mmc_s}", f"{lm} {lmc_s}", length=True, units=u)
         self.size.slider.setInvertedAppearance(f.mmc > f.lmc)
-        self.size.slider.setToolTip(f"Left: {mm} (smallest hole / largest pin), right: {lm}")
+        self.size.setToolTip(f"Left: {mm} (smallest hole / largest pin), right: {lm}")
         self.direction = _SliderSpin(0.0, 360.0, 1, " deg")
         self.share = _SliderSpin(0.0, 100.0, 1, " %")
         self.size.valueChanged.connect(lambda v: model.set_state(fid, size=v))
