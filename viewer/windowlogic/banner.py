@@ -36,7 +36,17 @@ def mate_banner(res, scene, mi: int | None, states) -> Banner:
     m = scene.mates[mi]
     return Banner("assembles" if v.assembles else "interferes", "ok" if v.assembles else "fail", v.headline,
                   f"Mate {mi + 1} ({m.hole} ← {m.pin}). Worst case: {v.worst_case}.<br>"
-                  f"<span style='font-family:monospace'>{escape(v.formula)}</span>")
+                  f"<span style='font-family:monospace'>{escape(v.formula)}</span>", tip=CLEARANCE_TIP)
+
+
+CLEARANCE_TIP = (
+    "The clearance here is the guaranteed clearance (through-view): the hole's clear opening minus "
+    "the pin's swept envelope, both normal to datum A, at the sizes and tolerance shares set. It holds "
+    "whatever directions the axes lean, and the verdict is taken on it.\n"
+    "The 3D view's 'local gap at this tilt direction' is the gap where the pictured parts come "
+    "closest with the tilt directions as set; it depends on those directions and on where along the "
+    "axis the parts meet, so it can differ from the guaranteed clearance. It explains the picture; "
+    "it does not decide the fit.")
 
 
 def fastener_banner(res, scene, fid: str) -> Banner:
