@@ -50,12 +50,12 @@ from .aids import (  # noqa: E402
 from .bonus import BonusData, BonusPanel, bonus_chart, bonus_data  # noqa: E402
 from .dispatch import VIEWS_2D, draw_view, save_figure  # noqa: E402
 from .section import SectionData, section_data, section_view  # noqa: E402
-from .subjects import Subject, resolve_states, subject_of  # noqa: E402
+from .subjects import Measured, Subject, measured_of, resolve_states, subject_of  # noqa: E402
 from .through import ThroughData, through_data, through_view  # noqa: E402
 
 __all__ = [
-    "BonusData", "BonusPanel", "DPI", "Exaggeration", "FIGSIZE", "FONT_FAMILY", "HOLE_LINE", "OPENING_FILL",
+    "BonusData", "BonusPanel", "DPI", "Exaggeration", "FIGSIZE", "FONT_FAMILY", "HOLE_LINE", "Measured", "OPENING_FILL",
     "RC_PARAMS", "SectionData", "Subject", "ThroughData", "VIEWS_2D", "auto_k", "bonus_chart", "bonus_data",
-    "draw_view", "resolve_states", "save_figure", "section_data", "section_view", "style_context", "subject_of",
+    "draw_view", "measured_of", "resolve_states", "save_figure", "section_data", "section_view", "style_context", "subject_of",
     "through_data", "through_view",
 ]

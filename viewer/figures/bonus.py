@@ -19,7 +19,7 @@ from geom.model import Feature, Kind, Standard
 from viewer import style as S
 
 from .aids import DPI, FIGSIZE, _spread_y, _title, style_context
-from .subjects import Subject, _subject, resolve_states
+from .subjects import Measured, Subject, _subject, measured_of, resolve_states
 
 
 @dataclass(frozen=True)
@@ -59,13 +59,21 @@ def bonus_data(res: SceneResult, subject, states=None, n: int = 41) -> BonusData
 
 
 def bonus_chart(res: SceneResult, subject, states=None, *, fig: Figure | None = None, rect=None,
-                fontsize: float = 9.0, figsize=FIGSIZE):
+                fontsize: float = 9.0, figsize=FIGSIZE, measured=None):
     """Tolerance allowed against produced size (top) and the boundaries it gives (bottom), one
-    column per feature. Returns ``(Figure, BonusData)``.
+    column per feature, the size axis running MMC (left) to LMC (right) as the what-if slider
+    does. Returns ``(Figure, BonusData)``.
+
+    ``measured``: an inspection result (geom.inspect.InspectionResult) or a
+    :class:`~.subjects.Measured`: its feature's column marks the measured envelope size and the
+    tolerance allowed at it ("measured: AME 8.003, tolerance allowed 0.018") beside the what-if
+    state.
 
     Artists with ``gid``: "<id>-allowed" (tolerance allowed line), "<id>-size" (the produced size
-    diagonal), "<id>-mating" / "<id>-opposite" (boundary lines), "<id>-produced" (marker).
+    diagonal), "<id>-mating" / "<id>-opposite" (boundary lines), "<id>-produced" (marker),
+    "<id>-measured" (the measured marker).
     """
+    meas = measured_of(measured)
     with style_context():
         data = bonus_data(res, subject, states)
         own = fig is None
@@ -80,6 +88,8 @@ def bonus_chart(res: SceneResult, subject, states=None, *, fig: Figure | None = 
             ax_t = fig.add_subplot(gs[0, j])
             ax_b = fig.add_subplot(gs[1, j], sharex=ax_t)
             _draw_bonus(ax_t, ax_b, res, res.scene.feature(pan.feature_id), pan, fontsize if own else fontsize * 0.95)
+            if meas is not None and meas.feature_id == pan.feature_id and meas.allowed is not None:
+                _draw_measured(ax_t, ax_b, res.scene.units, meas, fontsize if own else fontsize * 0.95)
         if own:
             B = term("bonus", res.scene.standard)[0]
             _title(fig, None, True, f"{B[0].upper() + B[1:]}: tolerance allowed vs produced size\n{data.subject.title}",
@@ -107,11 +117,31 @@ def _draw_bonus(ax_t, ax_b, res, f: Feature, p: BonusPanel, fs: float):
     _draw_allowed(ax_t, u, mmc_n, lmc_n, p, f.tolerance.value, fs)
     _draw_boundaries(ax_b, res, f, p, lim_note, fs)
     _draw_bracket(ax_t, u, B, f, p, fs)
-    ax_b.set_xlim(p.sizes[0] - 0.04 * (p.sizes[-1] - p.sizes[0]), p.sizes[-1] + 0.04 * (p.sizes[-1] - p.sizes[0]))
+    ax_b.set_xlim(*size_axis_limits(f))
     # name the limits on the x axis
     ax_b.set_xticks([f.limits[0], f.limits[1]])
     ax_b.set_xticklabels([f"{u.fmt(f.limits[0])}\n{mmc_n if f.limits[0] == f.mmc else lmc_n}",
                           f"{u.fmt(f.limits[1])}\n{mmc_n if f.limits[1] == f.mmc else lmc_n}"])
+
+
+def size_axis_limits(f: Feature, pad: float = 0.04) -> tuple[float, float]:
+    """(left, right) of a bonus chart's size axis: MMC on the left, LMC on the right, as the
+    what-if slider runs, for holes (sizes ascending) and pins (descending); ``pad`` of the
+    range beyond each limit."""
+    d = pad * (f.lmc - f.mmc)
+    return f.mmc - d, f.lmc + d
+
+
+def _draw_measured(ax_t, ax_b, u, m: Measured, fs: float):
+    """The measured part on its column: a filled marker at (measured size, tolerance allowed at
+    it), its words under the what-if note, and a dotted line down through the boundaries."""
+    ax_t.plot([m.size], [m.allowed], "D", ms=5.5, mfc=S.SURFACE, mec=S.TEXT, mew=1.0, zorder=7,
+              gid=f"{m.feature_id}-measured")
+    ax_t.annotate(m.text(u), xy=(m.size, m.allowed), xytext=(0.5, 0.78), textcoords="axes fraction",
+                  ha="center", va="top", fontsize=fs * 0.82, color=S.TEXT, weight="bold",
+                  arrowprops=dict(arrowstyle="-", color=S.SURFACE, lw=0.7, shrinkB=4), gid=f"{m.feature_id}-measured-text")
+    for ax in (ax_t, ax_b):
+        ax.axvline(m.size, color=S.SURFACE, lw=0.9, ls=":")
 
 
 def _style_axes(ax_t, ax_b, u, f: Feature, fs: float):
@@ -191,7 +221,7 @@ def _draw_boundaries(ax_b, res, f: Feature, p: BonusPanel, lim_note: str, fs: fl
     ax_b.set_xlabel(f"produced size ({u.value}); {lim_note}", fontsize=fs * 0.8)
     # labels just above each line at a third of the way along, kept apart
     lo_, hi_ = ax_b.get_ylim()
-    i3 = len(p.sizes) // 3
+    i3 = len(p.sizes) // 3 if f.mmc <= f.lmc else len(p.sizes) - 1 - len(p.sizes) // 3  # a third from MMC
     entries = [(p.sizes[i3], "produced size", S.SURFACE), (p.mating[i3], m_lbl, S.VC), (p.opposite[i3], o_lbl, S.TEXT)]
     entries = [(min(max(yv, lo_), hi_), txt, col) for yv, txt, col in entries]  # a line not drawn: label in range
     fracs = [(e[0] - lo_) / (hi_ - lo_) for e in entries]
@@ -208,12 +238,11 @@ def _draw_bracket(ax_t, u, B: str, f: Feature, p: BonusPanel, fs: float):
     if p.material not in ("MMC", "LMC"):
         return
     t = f.tolerance.value
-    ref = f.mmc if p.material == "MMC" else f.lmc
     other = f.lmc if p.material == "MMC" else f.mmc
     tb = tolerance_allowed(f, other)
     ax_t.annotate("", xy=(other, tb), xytext=(other, t),
                   arrowprops=dict(arrowstyle="<|-|>", color=S.TEXT, lw=0.8, shrinkA=0, shrinkB=0, mutation_scale=6))
-    ha = "right" if other > ref else "left"
-    off = -1 if other > ref else 1
+    ha = "right" if p.material == "MMC" else "left"  # the size axis runs MMC (left) to LMC (right)
+    off = -1 if p.material == "MMC" else 1
     ax_t.annotate(f"{B} {u.fmt(tb - t)}", xy=(other, (t + tb) / 2), xytext=(off * 4, 0),
                   textcoords="offset points", ha=ha, va="center", fontsize=fs * 0.75)

@@ -108,3 +108,46 @@ def _state_line(res, states) -> str:
         share = "" if st.share == 1.0 else f", {st.share:.0%} of it used"
         parts.append(f"{fid} at {u.fmt(st.size)} (tolerance allowed {u.fmt(ta)}{share})")
     return "state shown: " + "; ".join(parts)
+
+
+@dataclass(frozen=True)
+class Measured:
+    """A measured feature as the 2D views mark it: the envelope size its bonus was figured from
+    (the actual mating size; under an (L) modifier the minimum-material one), its symbol, and
+    the tolerance allowed at it (geom.inspect's InspectionResult)."""
+
+    feature_id: str
+    size: float
+    allowed: float | None
+    abbr: str  # AME / AMME (ASME), GX / GN (ISO): geom.inspect.envelope_abbr
+
+    def text(self, u) -> str:
+        """"measured: AME 8.003, tolerance allowed 0.018" (no tolerance: the size alone)."""
+        tail = "" if self.allowed is None else f", tolerance allowed {u.fmt(self.allowed)}"
+        return f"measured: {self.abbr} {u.fmt(self.size)}{tail}"
+
+    def state(self, direction_deg: float = 0.0) -> FeatureState:
+        """The what-if state at the measured size, its whole allowed tolerance used."""
+        return FeatureState(self.size, 1.0, direction_deg)
+
+
+def measured_of(insp) -> Measured | None:
+    """The :class:`Measured` of an inspection result (a :class:`Measured` passes through);
+    None where no envelope size was found."""
+    if insp is None or isinstance(insp, Measured):
+        return insp
+    from geom.inspect import envelope_abbr
+
+    f = insp.feature
+    lmc = f.tolerance is not None and f.tolerance.material is Material.LMC
+    related = insp.bonus_basis == "related"
+    if lmc:
+        env = insp.least_material_related if related else insp.least_material
+        size = None if env is None else env.diameter
+    else:
+        size = insp.related_ame if related else insp.unrelated_ame
+    if size is None:
+        return None
+    return Measured(f.id, float(size), insp.tolerance_allowed,
+                    envelope_abbr(insp.standard, f.kind is Kind.HOLE, lmc))
+

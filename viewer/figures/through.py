@@ -50,6 +50,7 @@ from .subjects import (
     _subject,
     _tilt_direction_deg,
     _zone_height,
+    measured_of,
     resolve_states,
 )
 
@@ -99,21 +100,34 @@ def through_data(res: SceneResult, subject, states=None, exaggeration: float | N
 
 
 def through_view(res: SceneResult, subject, states=None, exaggeration: float | None = None, *,
-                 fig: Figure | None = None, rect=None, fontsize: float = 9.0, figsize=FIGSIZE):
+                 fig: Figure | None = None, rect=None, fontsize: float = 9.0, figsize=FIGSIZE, measured=None):
     """Through-view normal to datum A. Returns ``(Figure, ThroughData)``.
+
+    ``measured``: an inspection result (geom.inspect.InspectionResult) or a
+    :class:`~.subjects.Measured`: its feature is drawn at the measured envelope size with the
+    tolerance allowed at it, in place of its what-if state, and the footer says so first
+    ("measured: AME 8.003, tolerance allowed 0.018").
 
     Artists with ``gid``: "hole-section-0" / "hole-section-1" (end sections), "opening" (the
     shaded clear opening), "inscribed" (its largest inscribed circle), "pin-section-*",
     "pin-envelope" (the pin's enclosing circle), "overlap", "gap-dim".
     """
+    meas = measured_of(measured)
+    sub = _subject(res, subject)
+    sts = resolve_states(res, sub, states)
+    if meas is not None and meas.feature_id in sts:
+        sts[meas.feature_id] = meas.state(sts[meas.feature_id].direction_deg)
+    else:
+        meas = None
     with style_context():
-        data = through_data(res, subject, states, exaggeration)
+        data = through_data(res, sub, sts, exaggeration)
         fig, ax, own = _new_figure(fig, rect, figsize)
         _draw_through(ax, res, data, fontsize)
-        sub = data.subject
         u = res.scene.units
         _title(fig, ax, own, f"Through-view normal to datum A\n{sub.title}", fontsize)
         foot = [data.exaggeration.label(u), _state_line(res, data.states)]
+        if meas is not None:
+            foot.insert(0, meas.text(u))
         _scale_bar(ax, data.exaggeration, u, fontsize)
         so = _second_order_note(res, data)
         if so:

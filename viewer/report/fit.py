@@ -33,6 +33,7 @@ from geom.readout import feature_heading, feature_rows, mate_lines
 from geom.textfile import file_slug
 from viewer import figures as F
 from viewer import style as S
+from viewer.exaggeration import scale_text, subject_exaggeration
 
 from .page import (
     CONTENT_W,
@@ -258,6 +259,37 @@ def _picture_height(p: _Page, res: SceneResult, item: Item, states, y: float) ->
     return max(PICTURE_H[0], min(PICTURE_H[1], room / 2))
 
 
+def item_scale_text(res: SceneResult, item: Item) -> str:
+    """The page subject's scale sentence, :func:`viewer.exaggeration.scale_text` at the
+    subject's one exaggeration: the words its 3D picture and 2D views print."""
+    k = subject_exaggeration(res, item.index, item.feature_id if item.index is None else None)
+    sub = item.subject
+    ref = sub.hole if sub.is_mate else (sub.hole or sub.pin)
+    return scale_text(k, ref.mmc / 2, res.scene.units)
+
+
+IMAGE_INSET = 0.42  # inches of a picture slot's height kept for its heading and its note
+
+
+def image_slot_3d(res: SceneResult, item: Item, states, design_intent: bool = False) -> tuple[float, float]:
+    """(width, height) in inches of the box the page's 3D picture is printed into, from a dry
+    run of the page down to the pictures (the same layout :func:`build_page` draws)."""
+    char, tol = _requirement_parts(item, res.scene.units)
+    title, subtitle = (DESIGN_TITLE, DESIGN_SUBTITLE) if design_intent else (FIT_TITLE, FIT_SUBTITLE)
+    with evidence_page(res, title, subtitle, char, tol, 1, 1) as (p, y):
+        dry = _DryPage(p.fig)
+        y = _verdict(dry, res, item, y + 0.08, design_intent)
+        gh = _picture_height(dry, res, item, states, y)
+    return (CONTENT_W - 0.15) / 2, gh - IMAGE_INSET
+
+
+def printed_height(image_shape, slot: tuple[float, float]) -> float:
+    """Inches the ``image`` (its shape) prints at when shown whole, aspect kept, in ``slot``
+    (width, height in inches), as ``imshow`` with equal aspect fits it."""
+    h, w = image_shape[:2]
+    return min(slot[1], slot[0] * h / w)
+
+
 def _pictures(p: _Page, res: SceneResult, item: Item, states, image3d, view: str, y: float,
               gh: float = PICTURE_H[1]) -> float:
     """The 3D picture and the three 2D views, 2 x 2, each slot ``gh`` inches high."""
@@ -267,14 +299,14 @@ def _pictures(p: _Page, res: SceneResult, item: Item, states, image3d, view: str
     gw, gap = (W - 0.15) / 2, 0.1
     slots = [(x0, y), (x0 + gw + 0.15, y), (x0, y + gh + gap), (x0 + gw + 0.15, y + gh + gap)]
     fs2 = 5.4
-    ax = fig.add_axes(p.rect(slots[0][0], slots[0][1] + 0.14, gw, gh - 0.42))
+    ax = fig.add_axes(p.rect(slots[0][0], slots[0][1] + 0.14, gw, gh - IMAGE_INSET))
     ax.set_axis_off()
     if image3d is not None:
         ax.imshow(image3d, interpolation="antialiased")
         ax.set_aspect("equal")
     p.text(slots[0][0], slots[0][1], f"3D view ({view})", fontsize=fs2 * 1.2, weight="bold")
-    p.text(slots[0][0], slots[0][1] + gh - 0.2, "same colours as the 2D views; red = interference; "
-           "radial deviations exaggerated, lengths true\n(the full picture with its numbers and legend is "
+    p.text(slots[0][0], slots[0][1] + gh - 0.2, "same colours as the 2D views; red = interference;\n"
+           + item_scale_text(res, item) + "\n(the full picture with its numbers and legend is "
            "the separate 3D PNG)", fontsize=fs2 * 0.85, color=GREY)
     for (sx, sy), name in zip(slots[1:], VIEW_FILES):
         rect = p.rect(sx, sy + 0.14, gw, gh - 0.4 if name != "bonus" else gh - 0.5)

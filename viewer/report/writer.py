@@ -23,7 +23,7 @@ from geom.textfile import file_slug
 from viewer import figures as F
 
 from .fastener import FASTENERS_PER_PAGE, build_fastener_page, fastener_figure
-from .fit import VIEW_FILES, build_page, item_states, report_items
+from .fit import VIEW_FILES, build_page, image_slot_3d, item_states, printed_height, report_items
 from .inspection import build_inspection_page
 from .page import crop_to_content
 from .readings import scene_inspections
@@ -56,6 +56,37 @@ def page_image_3d(scene3d_obj, view: str) -> np.ndarray:
     """The 3D picture for the page: the model and its 3D labels without the text overlays (the
     page prints those numbers in its table), cropped to the model so it reads at page size."""
     return crop_to_content(_bare_render(scene3d_obj, view))
+
+
+LABEL_MIN_PT = 6.0  # the least printed size of a 3D label on a page
+_LABEL_AIM_PT = 6.4  # what the page picture's labels are drawn for (crops move a little)
+
+
+def label_fit(slot: tuple[float, float], aim_pt: float = _LABEL_AIM_PT):
+    """The ``fit`` of :func:`viewer.scene3d.render_variants` for a page picture printed in
+    ``slot`` (width, height in inches) after :func:`crop_to_content`: the label scale at which
+    the smallest label prints at ``aim_pt`` points (never smaller than drawn)."""
+
+    def fit(img: np.ndarray, label_px: float) -> float:
+        crop = crop_to_content(img)
+        fit.last = (img, crop)  # the crop of the picture judged last, for the page to reuse
+        pt = label_px * printed_height(crop.shape, slot) * 72.0 / crop.shape[0]
+        return 1.0 if pt >= aim_pt else aim_pt / pt * 1.04
+
+    fit.last = (None, None)
+    return fit
+
+
+def _page_crop(variant: tuple, img: np.ndarray) -> np.ndarray:
+    """The page picture cropped (:func:`crop_to_content`), reusing the crop its fit made."""
+    last = getattr(variant[2], "last", (None, None))
+    return last[1] if last[0] is img else crop_to_content(img)
+
+
+def page_variant(slot: tuple[float, float]) -> tuple:
+    """The ``render_variants`` entry of a page picture printed in ``slot``: no text overlays,
+    labels drawn to print at :data:`LABEL_MIN_PT` or more."""
+    return (None, _page_layers(), label_fit(slot))
 
 
 def _inspection_views(view: str) -> list[str]:
@@ -125,8 +156,10 @@ def write_report(res: SceneResult, out_dir, sizes: dict[str, float] | None = Non
             s3 = scene3d.build_mate_scene(res, item.index, states=states)
         else:
             s3 = scene3d.build_feature_scene(res, item.feature_id, state=states[item.feature_id])
-        pics = scene3d.render_variants(s3, view, {"full": (png, None), "page": (None, _page_layers())})
-        images3d[item.file_key] = crop_to_content(pics["page"])
+        slot = image_slot_3d(res, item, states, design_intent=bool(inspections))
+        page = page_variant(slot)
+        pics = scene3d.render_variants(s3, view, {"full": (png, None), "page": page})
+        images3d[item.file_key] = _page_crop(page, pics["page"])
         written.append(png)
         say(f"{item.label}: 3D view", [png])
         for name in VIEW_FILES:

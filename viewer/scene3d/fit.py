@@ -98,15 +98,17 @@ def build_mate_scene(res: SceneResult, mate_index: int, states: dict[str, Featur
 
 
 def _fastener_for(res: SceneResult, f: Feature):
-    """The fixed-fastener pattern that goes with a projected zone: the one whose projection P
-    equals the zone height, else the only fixed one; None if there is none."""
+    """The fixed-fastener pattern the scene's fastener table pairs with a projected zone: the
+    one whose projection P equals the zone height (the thickness of the part it clamps, the
+    height the zone is projected by). None if no pattern is paired so: a hole that no fastener
+    goes with shows no mating fastener or gap, even where the scene has some other fixed
+    pattern."""
     tol = f.tolerance
-    fixed = [fr for fr in res.fasteners.values() if fr.fastener.kind == "fixed"]
-    same = [fr for fr in fixed if fr.fastener.projection is not None and tol is not None
-            and abs(fr.fastener.projection - (tol.projected or 0)) <= 1e-9]
-    if same:
-        return same[0]
-    return fixed[0] if len(fixed) == 1 else None
+    if tol is None or not tol.projected:
+        return None
+    same = [fr for fr in res.fasteners.values() if fr.fastener.kind == "fixed"
+            and fr.fastener.projection is not None and abs(fr.fastener.projection - tol.projected) <= 1e-9]
+    return same[0] if same else None
 
 
 @dataclass(frozen=True)
@@ -144,7 +146,8 @@ def _projected_note(b: _Built, res: SceneResult, f: Feature, st: FeatureState, e
     b.labels.append(Label(tuple(ex.pts(ghost[0:1])[0]), "axis if not projected", "#5C636A", 13, layer="projected"))
     fr = _fastener_for(res, f)
     if fr is None:
-        b.notes.append("no fixed fastener in the scene: the mating part is not drawn")
+        b.notes.append("no fixed fastener in the scene's table is paired with this hole (projection P "
+                       "equal to the zone's height): the mating part and fastener are not drawn")
         b.key("projected zone region", S.PROJECTED, "projected")
         return None
     fa = fr.fastener

@@ -21,6 +21,7 @@ from .measured import (
     _axis_layers,
     _datum_beyond,
     _envelope_layers,
+    _outside_layer,
     _points_layer,
     _Readings,
     _readings,
@@ -201,6 +202,7 @@ def build_inspection_scene(res: SceneResult, insp, exaggeration: float | None = 
     _envelope_layers(b, insp, ex, u, std, phi, labels_at)
     if zone_axis is not None:
         _zone_layer(b, insp, ex, u, std, zone_axis, zone_where, v)
+        _outside_layer(b, insp, ex, zone_axis)
     if insp.virtual_condition is not None:
         _vc_layer(b, res, insp, ex, phi, labels_at)
     _datum_beyond(b, insp, ex, direction_deg)

@@ -162,9 +162,9 @@ def _axis_layers(b: _Built, insp, ex: _Ex, rd: _Readings, v: np.ndarray) -> None
     if line is not None and len(line):
         dl = ex.pts(np.asarray(line, float))
         mcol = S.AXIS_NOT_GOVERNING if rd.gov_basis == "feature axis" else S.MEDIAN_LINE
-        b.add("median_line", "median line", _polyline(dl), _line(mcol, 3.0))
+        b.add("median_line", "median line", _polyline(dl), _line(mcol, 1.6))
         b.add("median_line", "median line points", pv.PolyData(dl.copy()),
-              dict(color=mcol, point_size=10, render_points_as_spheres=True, lighting=False))
+              dict(color=mcol, point_size=6, render_points_as_spheres=True, lighting=False))
         b.key(f"{rd.mline} (section centres)" + rd.role_of("median line").replace(" (", ": ").rstrip(")"), mcol,
               "median_line")
         ax_line = None if median is None else np.asarray(median.line, float)
@@ -285,6 +285,74 @@ def _datum_beyond(b: _Built, insp, ex: _Ex, direction_deg: float) -> None:
         r_big = max(r_big, float(np.hypot(*(b.layers["points"][0].mesh.points[:, :2] - np.array(centre)).T).max()))
     half = 1.1 * r_big + 0.2 * ex.R0
     _datum(b, f, centre, half, f.length, _symbol_side(direction_deg))
+
+
+OUTSIDE = "median line outside the zone"
+"""The name (layer "median_line") of the portions of the median line that leave the zone."""
+
+
+def outside_runs(line: np.ndarray, zone_axis: np.ndarray, t: float, width: bool = False,
+                 sub: int = 16) -> list[np.ndarray]:
+    """The portions of the polyline ``line`` (k, 3) outside a zone of size ``t`` about
+    ``zone_axis`` (2, 3): a cylinder of diameter ``t``, or with ``width`` the slab of width
+    ``t`` normal to x. Each segment is sampled ``sub`` times, so a run starts and ends within
+    1/sub of a segment of where the line crosses the zone's boundary; true coordinates.
+
+    >>> ax = np.array([[0.0, 0, 0], [0, 0, 10]])
+    >>> runs = outside_runs(np.array([[0.0, 0, 0], [0.02, 0, 10]]), ax, 0.02, sub=10)
+    >>> [round(float(r[0, 2]), 3) for r in runs], round(float(runs[0][-1, 0]), 3)
+    ([5.0], 0.02)
+    """
+    line = np.asarray(line, float)
+    if len(line) < 2:
+        return []
+    s = np.linspace(0.0, 1.0, sub + 1)[:-1]
+    pts = np.vstack([line[i] + np.outer(s, line[i + 1] - line[i]) for i in range(len(line) - 1)] + [line[-1:]])
+    a, d = zone_axis[0], zone_axis[1] - zone_axis[0]
+    d = d / np.linalg.norm(d)
+    rel = pts - a
+    if width:
+        dist = np.abs(rel[:, 0])
+    else:
+        dist = np.linalg.norm(rel - np.outer(rel @ d, d), axis=1)
+    h = t / 2.0
+    out = dist > h * (1 + 1e-9)
+
+    def cross(m: int, n: int) -> np.ndarray:  # where the line meets the boundary between samples m, n
+        w = (h - dist[m]) / (dist[n] - dist[m])
+        return pts[m] + w * (pts[n] - pts[m])
+
+    runs, i = [], 0
+    while i < len(pts):
+        if not out[i]:
+            i += 1
+            continue
+        j = i
+        while j + 1 < len(pts) and out[j + 1]:
+            j += 1
+        run = ([cross(i - 1, i)] if i > 0 else []) + list(pts[i:j + 1]) + ([cross(j + 1, j)] if j + 1 < len(pts) else [])
+        runs.append(np.array(run))
+        i = j + 1
+    return runs
+
+
+def _outside_layer(b: _Built, insp, ex: _Ex, zone_axis: np.ndarray) -> None:
+    """The portions of the median line outside the zone at the tolerance allowed, in the
+    nonconformance colour over the (thin) median line, so the picture shows where it leaves."""
+    tol = insp.feature.tolerance
+    line = insp.median_line
+    if tol is None or tol.projected or line is None or insp.tolerance_allowed is None:
+        return
+    runs = outside_runs(line, zone_axis, insp.tolerance_allowed, width=tol.zone is Zone.WIDTH)
+    for r in runs:
+        dr = ex.pts(r)
+        if len(dr) >= 2:
+            b.add("median_line", OUTSIDE, _polyline(dr), _line(S.ROLE_COLOUR["fail"], 5.0))
+        else:
+            b.add("median_line", OUTSIDE, pv.PolyData(dr.copy()),
+                  dict(color=S.ROLE_COLOUR["fail"], point_size=9, render_points_as_spheres=True, lighting=False))
+    if runs:
+        b.key(OUTSIDE, S.ROLE_COLOUR["fail"], "median_line")
 
 
 def _zone_placement(f: Feature, insp) -> tuple[np.ndarray | None, str]:
