@@ -478,3 +478,23 @@ def test_size_spin_shows_display_decimals_and_keeps_finer_values(qtbot):
     spin.interpretText()
     assert m.states["cap-bore"].size == pytest.approx(8.0045, abs=1e-9)  # the typed value, not 8.005 or 8.004
     _close(win)
+
+
+def test_inspection_2d_views_mark_the_measured_part(qtbot):
+    from geom.inspect import inspect_feature
+    from geom.scenefile import load
+
+    ref = inspect_feature(load(CAP), "cap-bore")  # independent: geom in the test
+    win = _open(qtbot, CAP)
+    assert _wait_inspection(qtbot, win, lambda: win.model.set_focus("inspection", "cap-bore")) is True
+    u = win.model.scene.units
+    # the measured actual mating size and the tolerance allowed at it: AME 8.003, t 0.015 + bonus
+    want = f"measured: AME {u.fmt(ref.unrelated_ame)}"
+    for key in ("bonus", "through"):
+        fig = win.views2d.make_figure(key)
+        texts = " ".join(t.get_text() for ax in fig.axes for t in ax.texts) + " " + \
+            " ".join(t.get_text() for t in fig.texts)
+        assert want in texts, (key, want)
+    fig = win.views2d.make_figure("section")  # the section shows the design intent only
+    assert "measured:" not in " ".join(t.get_text() for t in fig.texts)
+    _close(win)

@@ -12,6 +12,9 @@ from .model import SceneModel
 from .views import draw_problem
 
 
+MARKS_MEASURED = ("through", "bonus")  # the 2D views that mark a measured part when one is shown
+
+
 def _fit_canvas_class():
     from matplotlib.backends.backend_qt5agg import FigureCanvasQTAgg
 
@@ -70,6 +73,7 @@ class Views2D(QTabWidget):
         model.statesChanged.connect(self.schedule)
         model.sceneChanged.connect(self.schedule)
         model.focusChanged.connect(self.schedule)
+        model.inspectionChanged.connect(self.schedule)
         model.focusChanged.connect(self._tabs_for_focus)
         model.sceneChanged.connect(self._tabs_for_focus)
         self._tabs_for_focus()
@@ -129,7 +133,11 @@ class Views2D(QTabWidget):
                 from viewer.report import fastener_figure
 
                 return fastener_figure(m.result, sub[1])
-            fig, _data = self.figures_mod.draw_view(key, m.result, sub, dict(m.states))
+            kw = {}
+            insp = m.shown_inspection()
+            if insp is not None and key in MARKS_MEASURED:  # the measured part, not the nominal one
+                kw["measured"] = insp
+            fig, _data = self.figures_mod.draw_view(key, m.result, sub, dict(m.states), **kw)
             return fig
 
     def draw(self, key: str) -> None:

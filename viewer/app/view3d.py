@@ -303,8 +303,17 @@ class View3D(QWidget):
         stale = self._text_key is not None and self._text_key[0] != tuple(self.plotter.window_size)
         if stale:
             self._readd()
+        if getattr(self, "_framed", None) is not None and self._camera_now() == self._framed:
+            # the camera is still the one framed for the old size (the user has not turned it):
+            # frame the model again for the new size
+            self.set_view(self.current_view, render=False)
+            moved = True
         if moved or stale:
             self.render()
+
+    def _camera_now(self) -> tuple:
+        """The camera's position, focal point and up vector, to tell a user's move from a frame."""
+        return tuple(tuple(round(float(c), 9) for c in v) for v in self.plotter.camera_position)
 
     def _place_scalar_bar(self) -> bool:
         """Keep the colour bar and its title inside the view; True if a bar moved."""
@@ -333,8 +342,11 @@ class View3D(QWidget):
         if (shown is not self.current) != self._cut:
             self._readd(shown)
         # the scene's camera leaves the top-left corner to the numbers on the picture; the window
-        # shows them in the table instead, so the picture is centred (the colour bar keeps its side)
-        self.scene3d_mod.apply_view(self.plotter, replace(self.current, window_centre=WINDOW_CENTRE), view)
+        # shows them in the table instead, so the model is framed into the area the overlays drawn
+        # here (the colour bar, the labels) leave free, filling it
+        self.scene3d_mod.apply_view(self.plotter, replace(self.current, window_centre=WINDOW_CENTRE), view,
+                                    frame=True)
+        self._framed = self._camera_now()
         if render:
             self.render()
 
