@@ -26,22 +26,7 @@ if not os.environ.get("DISPLAY"):
     pytest.skip("GUI tests need an X display: run them under xvfb-run -a", allow_module_level=True)
 
 
-def _open(qtbot, path=GEARBOX):
-    from geom.scenefile import load
-    from viewer.app.main import make_window
-
-    win = make_window(load(path), str(path))
-    qtbot.addWidget(win)
-    win.confirm = lambda: "discard"
-    win.show()
-    with qtbot.waitSignal(win.view3d.rendered, timeout=60_000):
-        win.view3d.schedule()
-    return win
-
-
-def _close(win):
-    win.confirm = lambda: "discard"
-    win.close()
+from test_gui import _close, _open  # noqa: E402  (one way to open and close the window in tests)
 
 
 def _raw(path, i=0) -> dict:

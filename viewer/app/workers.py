@@ -46,7 +46,18 @@ class InspectionWorker(QObject):
         self.done.emit(token, res, time.perf_counter() - t0)
 
 
-class ReportWorker(QObject):
+class _ProcessJob(QObject):
+    """A job run as a separate process; :meth:`cancel` stops it from any thread (the command
+    itself cleans up: nothing half-written is left)."""
+
+    def cancel(self) -> None:
+        with self._lock:
+            self.cancelled = True
+            if self.proc is not None and self.proc.poll() is None:
+                self.proc.terminate()
+
+
+class ReportWorker(_ProcessJob):
     """Runs the report pipeline off the GUI thread: ``matezone report`` on the scene shown
     (written to a temporary file under its own name), with the what-if sizes, the bonus basis
     and the measured points files as the window reads them (given with ``--points``: the
@@ -105,15 +116,8 @@ class ReportWorker(QObject):
         except Exception as e:  # the message goes to the window; the window keeps running
             self.failed.emit(f"{type(e).__name__}: {e}")
 
-    def cancel(self) -> None:
-        """Stop the report (safe from any thread): the command cleans up its temporary folder."""
-        with self._lock:
-            self.cancelled = True
-            if self.proc is not None and self.proc.poll() is None:
-                self.proc.terminate()
 
-
-class SweepWorker(QObject):
+class SweepWorker(_ProcessJob):
     """Writes the teaching sweep of the scene shown to a GIF or MP4 off the GUI thread: the job
     (:func:`viewer.windowlogic.teaching.main`) runs in a separate process on a temporary copy of
     the scene, like the report, and writes the file all or nothing; :meth:`cancel` stops it and
@@ -162,10 +166,3 @@ class SweepWorker(QObject):
             self.failed.emit(msg or f"the sweep job exited with status {code}")
         except Exception as e:  # the message goes to the window; the window keeps running
             self.failed.emit(f"{type(e).__name__}: {e}")
-
-    def cancel(self) -> None:
-        """Stop the job (safe from any thread)."""
-        with self._lock:
-            self.cancelled = True
-            if self.proc is not None and self.proc.poll() is None:
-                self.proc.terminate()
