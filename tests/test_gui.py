@@ -174,13 +174,8 @@ def _props(view) -> list:
 
 
 def _label_texts(view) -> list[str]:
-    """The strings of every 3D point label, read from the label actors' VTK pipelines."""
-    out = []
-    for a in view.actors.get("labels", []):
-        data = a.GetMapper().GetInputAlgorithm().GetInputDataObject(0, 0)
-        arr = data.GetPointData().GetAbstractArray("labels")
-        out += [arr.GetValue(i) for i in range(arr.GetNumberOfValues())]
-    return out
+    """The strings of every 3D label, read from the callouts' VTK text actors."""
+    return [a.GetInput() for a in view.actors.get("labels", []) if hasattr(a, "GetInput")]
 
 
 def _settled(v) -> bool:

@@ -20,6 +20,7 @@ from viewer.scene3d import (
     N_PHI,
     N_PHI_CAGE,
     VIEWS,
+    CLOSE_UP,
     Scene3D,
     add_to_plotter,
     auto_exaggeration,
@@ -345,7 +346,7 @@ def test_every_scene_builds_and_renders(path):
         return
     for sc3 in built:
         assert sc3.exaggeration >= 1.0
-        assert set(sc3.cameras) == set(VIEWS)
+        assert set(VIEWS) <= set(sc3.cameras) <= {*VIEWS, CLOSE_UP}  # the close-up where a fit has a tightest spot
         assert sc3.readouts and sc3.legend
         for items in sc3.layers.values():
             for it in items:

@@ -25,7 +25,10 @@ __all__ = ["LAYER_NAMES", "View3D", "layer_name"]
 
 HIDDEN_IN_WINDOW = {"readouts"}  # the window's readout table shows these numbers already
 WINDOW_CENTRE = (0.0, 0.05)  # camera window centre in the window: centred, a little low (labels above)
-VIEW_NAMES = {"iso": "Iso", "top": "Top (through A)", "section": "Section"}
+VIEW_NAMES = {"iso": "Iso", "top": "Top", "section": "Section", "gap": "Close-up"}
+VIEW_TIPS = {"top": "Camera: normal to datum A, looking through the hole",
+             "gap": "Camera: the section closed in on the tightest spot of the fit, where the gap (or the "
+                    "overlap) is smallest; only a mate has one"}
 
 
 def _non_finite(sc3, checked: dict) -> str | None:
@@ -71,10 +74,10 @@ class View3D(QWidget):
         bar = QHBoxLayout()
         bar.addWidget(QLabel("View:"))
         self.view_buttons: dict[str, QToolButton] = {}
-        for v in scene3d.VIEWS:
+        for v in (*scene3d.VIEWS, scene3d.CLOSE_UP):
             b = QToolButton()
             b.setText(VIEW_NAMES.get(v, v))
-            b.setToolTip(f"Camera: {VIEW_NAMES.get(v, v)}")
+            b.setToolTip(VIEW_TIPS.get(v, f"Camera: {VIEW_NAMES.get(v, v)}"))
             b.clicked.connect(lambda _c=False, v=v: self.set_view(v))
             bar.addWidget(b)
             self.view_buttons[v] = b
@@ -114,6 +117,7 @@ class View3D(QWidget):
         self.live = scene3d.LiveScene(self.plotter)  # the actors on the plotter, updated in place
         self.current = None  # Scene3D shown
         self.current_view = "iso"
+        self._framed = None  # the camera as last framed by set_view (a user move differs)
         self._focus_key = None
         self._pending = False
         self.closed = False
@@ -247,9 +251,14 @@ class View3D(QWidget):
         self._focus_key = self.model.focus
         self.current = sc3
         self.caption.setText(sc3.caption)
+        close_up = self.scene3d_mod.CLOSE_UP
+        self.view_buttons[close_up].setEnabled(close_up in sc3.cameras)
+        if self.current_view not in sc3.cameras:  # the close-up of a scene with no fit
+            self.current_view, first = "iso", True
+        aimed = not first and self.current_view == close_up and self._camera_now() == self._framed
         if first or not self._update_in_place():
             self._readd()
-        if first:
+        if first or aimed:  # the close-up follows the tightest spot while the user has not turned it
             self.set_view(self.current_view, render=False)
         self.render()
         self.rendered.emit()

@@ -52,6 +52,7 @@ from .values import (
     N_PHI_CAGE,
     N_Z_MATE,
     VIEWS,
+    CLOSE_UP,
     Camera,
     Label,
     Layer,
@@ -59,7 +60,7 @@ from .values import (
 )
 
 __all__ = [
-    "HIDDEN_BY_DEFAULT", "LAYERS", "N_FINE", "N_PHI", "N_PHI_CAGE", "N_Z_MATE", "NICE", "VIEWS", "Camera",
+    "HIDDEN_BY_DEFAULT", "LAYERS", "N_FINE", "N_PHI", "N_PHI_CAGE", "N_Z_MATE", "NICE", "VIEWS", "CLOSE_UP", "Camera",
     "Label", "Layer", "LiveScene", "Scene3D", "add_to_plotter", "apply_view", "auto_exaggeration",
     "build_feature_scene", "build_inspection_scene", "build_mate_scene", "clear_caches",
     "keep_scalar_bars_in_view", "nice_floor", "render_image", "render_variants", "section_cut",

@@ -23,7 +23,7 @@ from geom.analysis import SceneResult
 
 from ..exaggeration import scale_text
 from ..memo import Memo, key_of
-from .values import LAYERS, Label, Layer, Scene3D, _Ex
+from .values import CLOSE_UP, LAYERS, Label, Layer, Scene3D, _Ex
 
 DETAIL = "zones, gaps, tilts and size differences all drawn at this factor"
 """The 3D caption's own clause, after the common scale sentence (:func:`scale_text`)."""
@@ -112,6 +112,21 @@ def _cameras(bounds, direction_deg: float, centre) -> tuple[dict, dict, tuple]:
     return cams, scale, (t((centre[0], centre[1], 0.0)), t(v))
 
 
+def _close_up(section, spot, ex, tightest: float, z_mid: float) -> tuple:
+    """The camera of the close-up: the section camera's direction, aimed at the tightest spot
+    ``spot`` (drawn coordinates; it lies in the plane of the tilt, so the section shows the gap
+    there in profile), and its parallel scale: half the picture's height is three drawn gaps (the
+    gap drawn ``ex.k`` times its true size) or 0.15 of the drawn radius, whichever is more. The
+    spot sits in the third of the picture towards its end of the engagement (below ``z_mid``:
+    the lower third), so the picture shows the fit, not the empty side beyond it."""
+    pos, focal, up = (np.asarray(v, float) for v in section)
+    p = np.asarray(spot, float)
+    half = max(3.0 * ex.k * abs(float(tightest)), 0.15 * ex.R0)
+    c = p + (0.45 * half if p[2] <= z_mid else -0.45 * half) * up / max(np.linalg.norm(up), 1e-12)
+    cam = (tuple(float(x) for x in c + (pos - focal)), tuple(float(x) for x in c), tuple(float(x) for x in up))
+    return cam, half
+
+
 def _finish(res: SceneResult, b: _Built, ex: _Ex, title: str, readouts: list[str], verdict: str,
             verdict_colour: str, direction_deg: float, kind: str, ids: tuple[str, ...], states: dict,
             clearance=None, tightest=None, bar=None) -> Scene3D:
@@ -121,6 +136,9 @@ def _finish(res: SceneResult, b: _Built, ex: _Ex, title: str, readouts: list[str
     box = (bounds[:, 0].min(), bounds[:, 1].max(), bounds[:, 2].min(), bounds[:, 3].max(),
            bounds[:, 4].min(), bounds[:, 5].max())
     cams, scale, section = _cameras(box, direction_deg, ex.c)
+    spot = next((lb.point for lb in b.labels if lb.layer == "clearance"), None)
+    if spot is not None and tightest is not None:
+        cams[CLOSE_UP], scale[CLOSE_UP] = _close_up(cams["section"], spot, ex, tightest, (box[4] + box[5]) / 2)
     u = res.scene.units
     words = scale_text(ex.k, ex.R0, u)
     caption = words + "\n" + (DETAIL_TRUE if ex.k == 1.0 else DETAIL)

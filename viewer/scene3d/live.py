@@ -11,11 +11,12 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-import numpy as np
 import pyvista as pv
 
 from .. import style as S
-from .plotter import _label_groups, _readout_texts, _text_box, add_to_plotter
+from .plotter import (
+    _font_px, _label_groups, _readout_texts, _text_box, add_to_plotter, callouts, drawn_text, source_text, stack_left,
+)
 
 MESHLESS = frozenset({"labels", "readouts", "legend"})  # layers add_to_plotter draws as text, not meshes
 
@@ -58,55 +59,8 @@ def _pipeline_head(mapper):
 
 
 @dataclass
-class _LabelSlot:
-    """One point-label actor and the points + strings feeding its label hierarchy."""
-
-    actor: object
-    key: tuple
-    data: object  # the vtkPolyData with the anchor points and the "labels" string array
-    texts: list
-    points: np.ndarray
-
-    @classmethod
-    def of(cls, actor, key, lbs):
-        import vtk
-
-        mapper = actor.GetMapper()
-        if not isinstance(mapper, vtk.vtkLabelPlacementMapper):
-            return None
-        hier = mapper.GetInputAlgorithm()
-        data = hier.GetInputDataObject(0, 0) if hier is not None else None
-        arr = data.GetPointData().GetAbstractArray("labels") if data is not None else None
-        texts = [lb.text for lb in lbs]
-        if arr is None or [arr.GetValue(i) for i in range(arr.GetNumberOfValues())] != texts:
-            return None
-        pts = np.array([data.GetPoint(i) for i in range(data.GetNumberOfPoints())], dtype=float)
-        return cls(actor, key, data, texts, pts)
-
-    def set(self, texts: list, points: np.ndarray) -> None:
-        """New strings and anchor points; the hierarchy re-places them at the next render."""
-        changed = False
-        if texts != self.texts:
-            arr = self.data.GetPointData().GetAbstractArray("labels")
-            for i, t in enumerate(texts):
-                arr.SetValue(i, t)
-            arr.Modified()
-            self.texts = list(texts)
-            changed = True
-        if points.shape != self.points.shape or not np.array_equal(points, self.points):
-            vp = self.data.GetPoints()
-            for i, q in enumerate(points):
-                vp.SetPoint(i, *q)
-            vp.Modified()
-            self.points = points
-            changed = True
-        if changed:
-            self.data.Modified()
-
-
-@dataclass
 class _TextSlot:
-    """One screen-text actor of the readout block."""
+    """One screen-text actor of the readout block (``height``: of its text when it was made)."""
 
     actor: object
     kind: str
@@ -115,18 +69,26 @@ class _TextSlot:
 
     @classmethod
     def of(cls, actor, kind, text):
-        if not hasattr(actor, "GetInput") or actor.GetInput() != text:
+        if not hasattr(actor, "GetInput") or source_text(actor) != text:
             return None
-        return cls(actor, kind, text, _text_box(text, actor.GetTextProperty())[1])
+        return cls(actor, kind, text, _text_box(actor.GetInput(), actor.GetTextProperty())[1])
 
     def set(self, text: str, colour: str) -> None:
         if text != self.text:
-            self.actor.SetInput(text)
+            self.actor.SetInput(drawn_text(self.actor, text))  # wrapped as the actor's first text was
+            if hasattr(self.actor, "_matezone_text"):
+                self.actor._matezone_text = text
             self.text = text
         tp = self.actor.GetTextProperty()
         rgb = S.rgb(colour)
         if tuple(tp.GetColor()) != rgb:
             tp.SetColor(*rgb)
+
+
+def _label_style(lb) -> tuple:
+    """What a label's text actor is made with beyond its text, colour and anchor: a label of
+    another size or frame needs a new actor."""
+    return (lb.size, lb.layer == "datum")
 
 
 class LiveScene:
@@ -139,7 +101,7 @@ class LiveScene:
         self.text_key = None  # (window size, layers shown) the text actors were made for
         self._feeds: dict[int, _Feed] = {}  # id of a mesh actor -> the mesh it draws, its own
         self._sig = None  # structure of the scene whose actors are on the plotter
-        self._labels: list[_LabelSlot] | None = None  # label actors that can take new text in place
+        self._labels = None  # the callouts (one per label) that can take new text in place
         self._readouts: list[_TextSlot] | None = None  # readout text actors, likewise
 
     def show(self, scene, visible: set[str], tag=None, in_place: bool = True) -> bool:
@@ -197,6 +159,9 @@ class LiveScene:
     def remove(self) -> None:
         """Take every actor, scalar bar and legend of ours off the plotter (no render)."""
         p = self.plotter
+        c = callouts(p)
+        if c is not None:
+            c.remove()
         for title in list(p.scalar_bars.keys()):  # pyvista keeps a registry of its bars
             p.remove_scalar_bar(title, render=False)
         if getattr(p, "legend", None) is not None:
@@ -227,22 +192,23 @@ class LiveScene:
         if self._labels is None or self._readouts is None \
                 or self.text_key != (tuple(self.plotter.window_size), frozenset(show)):
             return False
-        groups = _label_groups(scene, show)
-        if [(k, len(v)) for k, v in groups] != [(sl.key, len(sl.texts)) for sl in self._labels]:
+        lbs = [lb for _k, group in _label_groups(scene, show) for lb in group]
+        if [_label_style(lb) for lb in lbs] != [_label_style(lb) for lb in self._labels.labels]:
             return False
         texts = _readout_texts(scene, show)
         if [k for k, _t, _c in texts] != [sl.kind for sl in self._readouts]:
             return False
-        # the readout block is laid out from the heights of its texts: the same heights keep every
-        # position, so only the strings change; otherwise it is laid out anew
-        heights = [_text_box(t, sl.actor.GetTextProperty())[1] if t != sl.text else sl.height
-                   for (_k, t, _c), sl in zip(texts, self._readouts)]
-        if heights != [sl.height for sl in self._readouts]:
-            return False
-        for sl, (_k, lbs) in zip(self._labels, groups):
-            sl.set([lb.text for lb in lbs], np.array([lb.point for lb in lbs], dtype=float))
+        # a readout block grown wider than the caption was placed clear of: laid out anew; taller
+        # or shorter: the verdict lines are stacked again under it (plotter.stack_left)
+        for (_k, t, _c), sl in zip(texts, self._readouts):
+            left = getattr(sl.actor, "_matezone_left_w", None)
+            if left is not None and t != sl.text \
+                    and _text_box(drawn_text(sl.actor, t), sl.actor.GetTextProperty())[0] > left:
+                return False
+        self._labels.set(lbs)
         for sl, (_k, t, c) in zip(self._readouts, texts):
             sl.set(t, c)
+        stack_left([sl.actor for sl in self._readouts], self.plotter.window_size[1], _font_px(self.plotter))
         return True
 
     def _record_text(self, scene, visible) -> None:
@@ -251,10 +217,9 @@ class LiveScene:
         updates, the text is re-made each time)."""
         show = self._text_layers(visible)
         self.text_key = (tuple(self.plotter.window_size), frozenset(show))
-        groups = _label_groups(scene, show)
-        actors = self.actors.get("labels", [])
-        labels = [_LabelSlot.of(a, k, lbs) for a, (k, lbs) in zip(actors, groups)]
-        self._labels = labels if len(actors) == len(groups) and all(labels) else None
+        lbs = [lb for _k, group in _label_groups(scene, show) for lb in group]
+        c = callouts(self.plotter)
+        self._labels = c if c is not None and [lb.text for lb in c.labels] == [lb.text for lb in lbs] else None
         texts = _readout_texts(scene, show)
         actors = self.actors.get("readouts", [])
         readouts = [_TextSlot.of(a, k, t) for a, (k, t, _c) in zip(actors, texts)]

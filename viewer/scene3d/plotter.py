@@ -92,17 +92,41 @@ def label_font_px(plotter, size: int, label_scale: float = 1.0) -> int:
 
 
 def add_labels(plotter, scene: Scene3D, show: set[str], label_scale: float = 1.0) -> list:
-    """The scene's 3D labels as point-label actors (one per :func:`_label_groups` group), their
-    font :func:`label_font_px` at ``label_scale``; returns the actors."""
-    out = []
-    for (colour, size, framed, justify), lbs in _label_groups(scene, show):
-        out.append(plotter.add_point_labels(
-            np.array([lb.point for lb in lbs]), [lb.text for lb in lbs],
-            font_size=label_font_px(plotter, size, label_scale), text_color=colour, font_family=S.FONT_FAMILY,
-            bold=True, shape="rect", shape_color=S.BACKGROUND, shape_opacity=1.0 if framed else 0.8,
-            show_points=False, always_visible=True, margin=5 if framed else 2, reset_camera=False,
-            render=False, justification_horizontal=justify))
-    return out
+    """The scene's 3D labels as callouts (:class:`.callouts.Callouts`: one screen text per label,
+    placed clear of each other, of the markers and of the overlays before every render, with a
+    leader line where a label had to move off its anchor), their font :func:`label_font_px` at
+    ``label_scale``, in :func:`_label_groups` order; returns the actors (texts, then the leaders).
+    A plotter holds one set of callouts: this replaces any earlier one."""
+    from .callouts import Callouts
+
+    lbs = [lb for _k, group in _label_groups(scene, show) for lb in group]
+    c = Callouts(plotter, lbs, [label_font_px(plotter, lb.size, label_scale) for lb in lbs],
+                 getattr(plotter, "_matezone_markers", ()))
+    return c.actors
+
+
+def _show_labels(plotter, vis: set[str]) -> None:
+    """Show the callouts of the labels whose layer is in ``vis`` ("labels" shown at all)."""
+    c = callouts(plotter)
+    if c is None:
+        return
+    for t, lb in zip(c.texts, c.labels):
+        t.SetVisibility("labels" in vis and (lb.layer in vis or lb.layer == "labels"))
+    c.leaders.SetVisibility("labels" in vis)
+    c._off = set()
+
+
+def callouts(plotter):
+    """The :class:`.callouts.Callouts` of ``plotter`` (None before :func:`add_labels`)."""
+    return getattr(plotter.renderer, "_matezone_callouts", None)
+
+
+def _is_marker(mesh, style: dict) -> bool:
+    """A few points drawn as dots (the tightest spot, axis ends): labels keep clear of them."""
+    from .callouts import MARKER_POINTS
+
+    return bool(style.get("render_points_as_spheres")) and mesh.n_cells == mesh.n_points \
+        and 0 < mesh.n_points <= MARKER_POINTS
 
 
 def add_to_plotter(plotter, scene: Scene3D, visible: set[str] | None = None,
@@ -116,6 +140,7 @@ def add_to_plotter(plotter, scene: Scene3D, visible: set[str] | None = None,
     actors: dict[str, list] = {name: [] for name in LAYERS}
     plotter.set_background(S.BACKGROUND)
     mate_actor = None
+    markers = []
     for name in LAYERS:
         if name not in show:
             continue
@@ -130,45 +155,50 @@ def add_to_plotter(plotter, scene: Scene3D, visible: set[str] | None = None,
             if isinstance(style.get("scalars"), str):
                 _colour_by_name(a, it.mesh, style["scalars"])
             actors[name].append(a)
+            if _is_marker(it.mesh, style):
+                markers.append(a)
             if "scalars" in style and mate_actor is None:
                 mate_actor = a
     fs = _font_px(plotter)
+    plotter._matezone_markers = markers
     actors["labels"] += add_labels(plotter, scene, show, label_scale)
     w, h = plotter.window_size
-    top = 0.0
+    title_w, readouts_w, cap_y = 0, 0, h - int(0.012 * h)
     for kind, txt, colour in _readout_texts(scene, show):
         if kind == "title":
             t = plotter.add_text(txt, position=(int(0.012 * w), h - int(0.012 * h)), font_size=fs + 4,
                                  color=colour, font=S.FONT_FAMILY, render=False)
             t.GetTextProperty().SetVerticalJustificationToTop()
             t.GetTextProperty().BoldOn()
+            title_w = _text_box(txt, t.GetTextProperty())[0]
         elif kind == "readouts":
             t = plotter.add_text(txt, position=(int(0.012 * w), h - int(0.012 * h) - 3.2 * fs),
                                  font_size=fs, color=colour, font=S.MONO_FAMILY, render=False)
             t.GetTextProperty().SetVerticalJustificationToTop()
             t.GetTextProperty().SetLineSpacing(1.05)
-            top = h - int(0.012 * h) - 3.2 * fs - _text_box(txt, t.GetTextProperty())[1]
-            top -= 0.6 * fs
+            # a line longer than 0.62 of the width goes on, indented, on the next: the right
+            # column stays for the caption and the colour bar
+            _set_wrapped(t, txt, 0.62 * w)
+            readouts_w = _text_box(t.GetInput(), t.GetTextProperty())[0]
+            t._matezone_left_w = max(title_w, readouts_w)  # the caption was placed clear of this
         elif kind in ("caption", "caption detail"):
-            i, size, bold = (0, fs + 6, True) if kind == "caption" else (1, fs, False)
-            t = plotter.add_text(txt, position=(w - int(0.012 * w), h - int(0.012 * h) - i * 2.2 * (fs + 4)),
-                                 font_size=size, color=colour, font=S.FONT_FAMILY, render=False)
-            t.GetTextProperty().SetVerticalJustificationToTop()
-            t.GetTextProperty().SetJustificationToRight()
-            t.GetTextProperty().SetBold(bold)
-        elif kind == "verdict":  # under the readouts
-            t = plotter.add_text(txt, position=(int(0.012 * w), int(top)), font_size=fs + 3,
+            t = plotter.add_text(txt, position=(0, 0), font_size=fs, color=colour, font=S.FONT_FAMILY, render=False)
+            cap_y = _place_caption(t, kind, w, h, fs, max(title_w, readouts_w), cap_y)
+        elif kind == "verdict":  # under the readouts (stack_left), wrapped clear of the bar's column
+            t = plotter.add_text(txt, position=(int(0.012 * w), 0), font_size=fs + 3,
                                  color=colour, font=S.FONT_FAMILY, render=False)
             t.GetTextProperty().BoldOn()
+            _set_wrapped(t, txt, 0.86 * w - 2 * int(0.012 * w))
             t.GetTextProperty().SetVerticalJustificationToTop()
-            top -= _text_box(txt, t.GetTextProperty())[1] + 0.4 * fs
         else:  # a verdict line: one each, in its own colour
-            t = plotter.add_text(txt, position=(int(0.012 * w), int(top)), font_size=fs, color=colour,
+            t = plotter.add_text(txt, position=(int(0.012 * w), 0), font_size=fs, color=colour,
                                  font=S.MONO_FAMILY, render=False)
             t.GetTextProperty().BoldOn()
+            _set_wrapped(t, txt, 0.86 * w - 2 * int(0.012 * w))
             t.GetTextProperty().SetVerticalJustificationToTop()
-            top -= 1.15 * _text_box(txt, t.GetTextProperty())[1]
+        t._matezone_kind = kind
         actors["readouts"].append(t)
+    stack_left(actors["readouts"], h, fs)
     if "legend" in show:
         bar_box = None
         rows = [(lbl, col) for (lbl, col), layer in zip(scene.legend, scene.legend_layers) if layer in show]
@@ -181,6 +211,7 @@ def add_to_plotter(plotter, scene: Scene3D, visible: set[str] | None = None,
         widths = [_text_width(lbl, tx.GetTextProperty()) for (lbl, _), tx in zip(rows, texts)]
         row_px = 1.25 * max((tx.GetTextProperty().GetFontSize() for tx in texts), default=fs)
         x_txt = w - int(0.012 * w) - max(widths, default=0)
+        legend_top = 0.015 * h + len(rows) * row_px if rows else 0.0
         for i, ((lbl, col), tx) in enumerate(zip(reversed(rows), reversed(texts))):
             y = int(0.015 * h + i * row_px)
             tx.SetPosition(x_txt, y)
@@ -193,13 +224,19 @@ def add_to_plotter(plotter, scene: Scene3D, visible: set[str] | None = None,
             tp.SetFrameColor(*S.rgb(S.TEXT))
             actors["legend"] += [sw, tx]
         if mate_actor is not None and scene.scalar_bar is not None:
-            bar_box = (0.88 * w, w, 0.44 * h, 0.86 * h)  # the bar, its labels to the right, its title above
+            # the bar and its title between the caption's last row and the legend's top row: 0.34 of
+            # the height where there is room, at least 0.12
+            top = min(0.86, (cap_y - 0.012 * h) / h)
+            floor = (legend_top + 0.02 * h) / h if legend_top else 0.0
+            bh = max(0.12, min(0.34, top - 0.06 - max(floor, top - 0.40)))
+            by = top - 0.06 - bh
+            bar_box = (0.88 * w, w, (by - 0.02) * h, top * h)  # the bar, its labels to the right, its title above
             u = scene.units
             bar = scene.scalar_bar
             actors["legend"].append(plotter.add_scalar_bar(
                 title=bar["title"], mapper=mate_actor.mapper, n_labels=bar.get("n_labels", 5), color=S.TEXT,
-                font_family=S.FONT_FAMILY, vertical=True, position_x=0.90, position_y=0.46, width=0.06,
-                height=0.34, fmt=bar.get("fmt", f"%.{u.decimals}f"), title_font_size=fs + 3, label_font_size=fs + 1,
+                font_family=S.FONT_FAMILY, vertical=True, position_x=0.90, position_y=by, width=0.06,
+                height=bh, fmt=bar.get("fmt", f"%.{u.decimals}f"), title_font_size=fs + 3, label_font_size=fs + 1,
                 unconstrained_font_size=True, render=False))
             if bar.get("ticks"):
                 from vtkmodules.vtkCommonCore import vtkDoubleArray
@@ -220,7 +257,107 @@ def add_to_plotter(plotter, scene: Scene3D, visible: set[str] | None = None,
     if "legend" in show and bar_box is not None:
         boxes.append(("legend", bar_box))
     plotter._matezone_overlays = (tuple(plotter.window_size), [(k, b) for k, b in boxes if b is not None])
+    # each text's own box and the bar's, with the actor whose visibility says whether it is shown
+    own = [(t, _actor_box(t)) for layer in ("readouts", "legend") for t in actors[layer]
+           if hasattr(t, "GetTextProperty") and hasattr(t, "GetInput")]
+    if "legend" in show and bar_box is not None:
+        own.append((actors["legend"][-1], bar_box))
+    plotter._matezone_overlay_actors = [(t, b) for t, b in own if b is not None]
     return actors
+
+
+def overlay_boxes(plotter) -> list[tuple[float, float, float, float]]:
+    """(x0, x1, y0, y1), pixels, of each overlay text and colour bar :func:`add_to_plotter` drew
+    that is shown now (the 3D labels keep clear of them)."""
+    return [b for t, b in getattr(plotter, "_matezone_overlay_actors", ()) if t.GetVisibility()]
+
+
+def stack_left(texts, h: int, fs: int) -> None:
+    """Stack the verdict and the verdict lines (``texts``: the "readouts" actors of
+    :func:`add_to_plotter`, each knowing its kind) under the readout block as its text now is:
+    the verdict 0.6 ``fs`` under the block, each verdict line under the one before."""
+    top = None
+    for t in texts:
+        kind = getattr(t, "_matezone_kind", None)
+        hgt = _text_box(t.GetInput(), t.GetTextProperty())[1] if t.GetInput() else 0
+        if kind == "readouts":
+            top = t.GetPosition()[1] - hgt - 0.6 * fs
+        elif kind in ("verdict", "verdict line"):
+            if top is None:  # no readout block: under the title's row
+                top = h - int(0.012 * h) - 3.2 * fs
+            t.SetPosition(t.GetPosition()[0], int(top))
+            top -= hgt + 0.4 * fs if kind == "verdict" else 1.15 * hgt
+
+
+def _place_caption(t, kind: str, w: int, h: int, fs: int, left_w: float, y: float) -> float:
+    """The scale caption (bold, ``fs`` + 6, shrinking to ``fs`` + 2 before it wraps) or its detail
+    line (``fs``) right-aligned at the top right from height ``y`` down, wrapped at words to the
+    room the title and readouts leave (``left_w``: the wider of the two): the caption never
+    overlaps them. Returns the height the next text starts at."""
+    tp = t.GetTextProperty()
+    tp.SetVerticalJustificationToTop()
+    tp.SetJustificationToRight()
+    m = int(0.012 * w)
+    room = max(w - 3 * m - left_w, 0.2 * w)
+    text = t.GetInput()
+    # pyvista's add_text gives the text actor twice its font_size
+    sizes = range(2 * (fs + 6), 2 * (fs + 2) - 1, -1) if kind == "caption" else (2 * fs,)
+    tp.SetBold(kind == "caption")
+    for size in sizes:
+        tp.SetFontSize(size)
+        if _text_box(text, tp)[0] <= room:
+            break
+    _set_wrapped(t, text, room)
+    t.SetPosition(w - m, y)
+    return y - _text_box(t.GetInput(), tp)[1] - 0.3 * fs
+
+
+def _set_wrapped(t, text: str, width: float) -> None:
+    """Give the text actor ``t`` the string ``text`` wrapped to ``width`` pixels, remembering
+    both (:func:`drawn_text` wraps a later string the same way)."""
+    t._matezone_text, t._matezone_wrap = text, width
+    t.SetInput(_wrap(text, t.GetTextProperty(), width))
+
+
+def drawn_text(t, text: str) -> str:
+    """``text`` as the text actor ``t`` draws it: wrapped as :func:`_set_wrapped` wrapped its own."""
+    width = getattr(t, "_matezone_wrap", None)
+    return text if width is None else _wrap(text, t.GetTextProperty(), width)
+
+
+def source_text(t) -> str:
+    """The string a text actor was given, before any wrapping."""
+    return getattr(t, "_matezone_text", None) or t.GetInput()
+
+
+def _wrap(text: str, tp, width: float) -> str:
+    """``text`` with each of its lines broken at spaces into lines no wider than ``width`` pixels
+    (a word longer than that stands on its own line); a broken line goes on indented as far as it
+    was, plus two spaces."""
+    out: list[str] = []
+    for line in text.split("\n"):
+        if _text_box(line, tp)[0] <= width:
+            out.append(line)
+            continue
+        indent = " " * (len(line) - len(line.lstrip(" ")) + 2)
+        rows: list[str] = []
+        for word in line.split(" "):
+            if rows and (word == "" or _text_box(rows[-1] + " " + word, tp)[0] <= width):
+                rows[-1] += " " + word
+            else:
+                rows.append((indent if rows else "") + word)
+        out += rows
+    return "\n".join(out)
+
+
+def _sized(tp, size: int):
+    """A copy of the text property ``tp`` at font ``size``."""
+    import vtk
+
+    c = vtk.vtkTextProperty()
+    c.ShallowCopy(tp)
+    c.SetFontSize(size)
+    return c
 
 
 def _actor_box(t) -> tuple[float, float, float, float] | None:
@@ -313,7 +450,7 @@ def apply_view(plotter, scene: Scene3D, view: str, frame: bool = False) -> None:
     :func:`add_to_plotter` drew leave free (:func:`frame_model`), in place of the scene's fixed
     window centre."""
     if view not in scene.cameras:
-        raise ValueError(f"unknown view {view!r}; choose one of {', '.join(VIEWS)}")
+        raise ValueError(f"unknown view {view!r}; choose one of {', '.join(v for v in scene.cameras)}")
     plotter.camera_position = scene.cameras[view]
     cam = plotter.camera
     if view in scene.parallel_scale:
@@ -346,16 +483,23 @@ def render_variants(scene: Scene3D, view: str, variants: dict, size=(1600, 1200)
         union = set().union(*wanted)
         actors = add_to_plotter(pl, sc, union)
         sizes = [lb.size for _, lbs in _label_groups(sc, union) for lb in lbs]
+        drawn = 1.0  # the label scale the callouts on the plotter were made at
         for name, (path, _, fit), vis in zip(variants, specs, wanted):
             for layer, acts in actors.items():
+                if layer == "labels":
+                    continue
                 for a in acts:
                     if hasattr(a, "SetVisibility"):
                         a.SetVisibility(layer in vis)
             apply_view(pl, sc, view)  # each variant framed as render_image frames it alone
             if view not in sc.parallel_scale:
                 frame_model(pl, sc, vis)
-            own, scale = [], 1.0
+            scale = 1.0
             for attempt in range(4):
+                if drawn != scale:
+                    add_labels(pl, sc, union, scale)
+                    drawn = scale
+                _show_labels(pl, vis)
                 pl.render()
                 img = np.asarray(pl.screenshot(None, return_img=True))[..., :3]
                 if fit is None or not sizes or "labels" not in vis or attempt == 3:
@@ -364,13 +508,6 @@ def render_variants(scene: Scene3D, view: str, variants: dict, size=(1600, 1200)
                 if want <= scale * 1.001:
                     break
                 scale = want
-                for a in own or actors["labels"]:
-                    a.SetVisibility(False)
-                for a in own:
-                    pl.remove_actor(a, render=False)
-                own = add_labels(pl, sc, vis, scale)
-            for a in own:
-                pl.remove_actor(a, render=False)
             if path is not None:
                 import imageio.v3 as iio
 

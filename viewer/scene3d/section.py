@@ -18,7 +18,7 @@ from vtkmodules.util.numpy_support import numpy_to_vtk, vtk_to_numpy
 from .. import style as S
 from ..memo import Held, Memo
 from .primitives import _cell_array, _mesh
-from .values import VIEWS, Layer, Scene3D
+from .values import CLOSE_UP, VIEWS, Layer, Scene3D
 
 _UNCUT = frozenset({"datum", "axis", "zone_axis", "clearance", "median_line"})  # lines/points in the cut plane
 _OUTLINED = {"part": ("#6B737B", 2.0), "surface": (S.SURFACE, 5.0), "zone": (S.ZONE, 2.5), "mate": (None, 6.0),
@@ -296,7 +296,8 @@ def section_cut(scene: Scene3D) -> Scene3D:
 def view_scene(scene: Scene3D, view: str) -> Scene3D:
     """The scene as ``render_image`` draws it from ``view``: cut open at the plane of the tilt
     for "iso" and "section" (so the axes, the zone and the tight spots inside are visible),
-    whole for "top" (the through-view normal to A)."""
-    if view not in VIEWS:
+    whole for "top" (the through-view normal to A); the close-up of the tightest spot
+    (:data:`.values.CLOSE_UP`) is cut as the section is."""
+    if view not in VIEWS and not (view == CLOSE_UP and view in scene.cameras):
         raise ValueError(f"unknown view {view!r}; choose one of {', '.join(VIEWS)}")
     return scene if view == "top" else section_cut(scene)

@@ -39,7 +39,8 @@ LAYERS = (
     "legend",  # colour legend and the clearance scalar bar
 )
 HIDDEN_BY_DEFAULT = frozenset({"rc"})
-VIEWS = ("iso", "top", "section")
+VIEWS = ("iso", "top", "section")  # the cameras every scene has
+CLOSE_UP = "gap"  # a camera only a mate scene has: the section view closed in on the tightest spot
 
 N_PHI = 96  # vertices round a surface (divisible by 8: vertices on +-x, +-y and the diagonals)
 N_PHI_CAGE = 96  # vertices round a boundary ring (wireframe)
