@@ -193,7 +193,7 @@ class Callouts:
         self._key = None
 
     def _size(self, t) -> tuple[float, float]:
-        from .plotter import _text_box
+        from .overlays import _text_box
 
         tp = t.GetTextProperty()
         key = (t.GetInput(), tp.GetFontSize())

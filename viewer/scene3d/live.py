@@ -14,9 +14,8 @@ from dataclasses import dataclass
 import pyvista as pv
 
 from .. import style as S
-from .plotter import (
-    _font_px, _label_groups, _readout_texts, _text_box, add_to_plotter, callouts, drawn_text, source_text, stack_left,
-)
+from .overlays import _text_box, drawn_text, source_text, stack_left
+from .plotter import _font_px, _label_groups, _readout_texts, add_to_plotter, callouts
 
 MESHLESS = frozenset({"labels", "readouts", "legend"})  # layers add_to_plotter draws as text, not meshes
 
