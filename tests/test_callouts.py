@@ -173,3 +173,28 @@ def test_close_up_aims_at_the_tightest_spot_and_shows_its_gap(name):
         pl.close()
     feat = build_feature_scene(res, res.scene.features[0].id)
     assert CLOSE_UP not in feat.cameras  # a lone feature has no fit: no tightest spot
+
+
+# ---------------------------------------------------------------- the 3D scale bars
+
+@pytest.mark.parametrize("name", ["gearbox_endcap_dowel", "valve_body_guide_pin"])
+def test_scale_bars_are_drawn_at_the_picture_scale_with_their_true_lengths(name):
+    from viewer.exaggeration import bar_length
+    from viewer.scene3d import build_mate_scene
+
+    res = analyse_scene(load(SCENES / f"{name}.toml"))
+    sc3 = build_mate_scene(res, 0)
+    u = res.scene.units
+    across = sc3.find("scale", "scale bar across").mesh.points
+    along = sc3.find("scale", "scale bar along the axis").mesh.points
+    # the bar across: its first segment is the bar; drawn k times its true length
+    # (independent: the bar's own two end points, measured here)
+    bar = np.linalg.norm(across[1] - across[0])
+    true = bar / sc3.exaggeration
+    assert true == pytest.approx(bar_length(sc3.exaggeration, bar + 1e-12))  # a 1-2-5 length
+    texts = {lb.text for lb in sc3.labels if lb.layer == "scale"}
+    assert f"{u.fmt(true)} {u.value} true across (drawn x{sc3.exaggeration:g})" in texts
+    # along the axis lengths are true: the bar's drawn length is its labelled length
+    length = np.linalg.norm(along[1] - along[0])
+    assert f"{u.fmt(length)} {u.value} true along the axis" in texts
+    assert along[1][2] > along[0][2] and np.allclose(along[1][:2], along[0][:2])  # it stands along z

@@ -21,8 +21,10 @@ import pyvista as pv
 
 from geom.analysis import SceneResult
 
+from .. import style as S
 from ..exaggeration import scale_text
 from ..memo import Memo, key_of
+from .scalebar import scale_bars
 from .values import CLOSE_UP, LAYERS, Label, Layer, Scene3D, _Ex
 
 DETAIL = "zones, gaps, tilts and size differences all drawn at this factor"
@@ -112,6 +114,13 @@ def _cameras(bounds, direction_deg: float, centre) -> tuple[dict, dict, tuple]:
     return cams, scale, (t((centre[0], centre[1], 0.0)), t(v))
 
 
+def _box(b: _Built) -> tuple:
+    """(x0, x1, y0, y1, z0, z1) round the drawn meshes, the datum plane apart."""
+    bounds = np.array([it.mesh.bounds for name, items in b.layers.items() if name != "datum" for it in items])
+    return (bounds[:, 0].min(), bounds[:, 1].max(), bounds[:, 2].min(), bounds[:, 3].max(),
+            bounds[:, 4].min(), bounds[:, 5].max())
+
+
 def _close_up(section, spot, ex, tightest: float, z_mid: float) -> tuple:
     """The camera of the close-up: the section camera's direction, aimed at the tightest spot
     ``spot`` (drawn coordinates; it lies in the plane of the tilt, so the section shows the gap
@@ -130,11 +139,13 @@ def _close_up(section, spot, ex, tightest: float, z_mid: float) -> tuple:
 def _finish(res: SceneResult, b: _Built, ex: _Ex, title: str, readouts: list[str], verdict: str,
             verdict_colour: str, direction_deg: float, kind: str, ids: tuple[str, ...], states: dict,
             clearance=None, tightest=None, bar=None) -> Scene3D:
+    box = _box(b)
+    bars, marks = scale_bars(ex, box, direction_deg, res.scene.units)
+    for name, mesh, style in bars:
+        b.add("scale", name, mesh, style)
+    b.labels += [Label(p, text, S.TEXT, 13, layer="scale") for p, text in marks]
     layers = {name: tuple(b.layers[name]) for name in LAYERS if b.layers.get(name)}
-    meshes = [it.mesh for name, items in layers.items() if name != "datum" for it in items]
-    bounds = np.array([m.bounds for m in meshes])
-    box = (bounds[:, 0].min(), bounds[:, 1].max(), bounds[:, 2].min(), bounds[:, 3].max(),
-           bounds[:, 4].min(), bounds[:, 5].max())
+    box = _box(b)
     cams, scale, section = _cameras(box, direction_deg, ex.c)
     spot = next((lb.point for lb in b.labels if lb.layer == "clearance"), None)
     if spot is not None and tightest is not None:

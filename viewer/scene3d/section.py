@@ -20,7 +20,7 @@ from ..memo import Held, Memo
 from .primitives import _cell_array, _mesh
 from .values import CLOSE_UP, VIEWS, Layer, Scene3D
 
-_UNCUT = frozenset({"datum", "axis", "zone_axis", "clearance", "median_line"})  # lines/points in the cut plane
+_UNCUT = frozenset({"datum", "axis", "zone_axis", "clearance", "median_line", "scale"})  # lines/points in the cut plane
 _OUTLINED = {"part": ("#6B737B", 2.0), "surface": (S.SURFACE, 5.0), "zone": (S.ZONE, 2.5), "mate": (None, 6.0),
              "projected": (S.PROJECTED, 3.0), "envelopes": (None, 3.0)}
 

@@ -34,6 +34,7 @@ LAYERS = (
     "points",  # measured points, coloured by radial deviation (inspection scenes)
     "median_line",  # derived median line: section centres, as a polyline with its points
     "envelopes",  # unrelated and related actual mating envelopes of the measured feature
+    "scale",  # scale bars: across (true length, drawn at k) and along the axis (true)
     "labels",  # 3D text labels
     "readouts",  # numbers on the picture and the exaggeration caption
     "legend",  # colour legend and the clearance scalar bar

@@ -27,6 +27,7 @@ LAYER_NAMES = {
     "points": "Measured points",
     "median_line": "Median line",
     "envelopes": "Mating envelopes",
+    "scale": "Scale bars",
     "labels": "Labels",
     "readouts": "Numbers on the picture",
     "legend": "Colour legend",
