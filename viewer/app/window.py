@@ -68,6 +68,17 @@ def _top_aligned(widget: QWidget) -> QWidget:
     return scroll
 
 
+def _first_size() -> tuple[int, int]:
+    """The window's size when it opens: 1560 x 960, or what the screen has free less a margin."""
+    from PyQt5.QtWidgets import QApplication
+
+    screen = QApplication.primaryScreen() if QApplication.instance() is not None else None
+    if screen is None:
+        return 1560, 960
+    g = screen.availableGeometry()
+    return min(1560, int(g.width() * 0.96)), min(960, int(g.height() * 0.92))
+
+
 class MainWindow(ExportActions, QMainWindow):
     """matezone's desktop window (its picture and sweep exports: :class:`.exports.ExportActions`)."""
 
@@ -82,7 +93,7 @@ class MainWindow(ExportActions, QMainWindow):
             glyphs.setup(QApplication.instance())
         self.model = model or SceneModel()
         self.setWindowTitle(APP_NAME)
-        self.resize(1560, 960)
+        self.resize(*_first_size())
         self.confirm = self._ask_unsaved  # replaceable in tests: returns "save" | "discard" | "cancel"
         self._thread: QThread | None = None
         self._worker: ReportWorker | None = None

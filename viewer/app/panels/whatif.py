@@ -78,7 +78,7 @@ class _SliderSpin(QWidget):
         self.spin.setRange(lo, hi)
         self.spin.setSuffix(suffix)
         self.spin.setKeyboardTracking(False)
-        self.spin.setMinimumWidth(110)
+        self.spin.setMinimumWidth(max(110, self.spin.sizeHint().width()))  # the value and its unit never clip
         lay.addWidget(self.slider, 0, 0, 1, 2)
         lay.addWidget(self.spin, 0, 2)
         lay.setColumnStretch(0, 1)
@@ -137,6 +137,7 @@ class FeatureControls(QGroupBox):
         u = model.scene.units
         st = model.scene.standard
         lay = QFormLayout(self)
+        lay.setRowWrapPolicy(QFormLayout.WrapLongRows)  # a narrow panel puts a row's name above it
         mm, lm = term("mmc", st)[0], term("lmc", st)[0]
         # the slider runs from MMC (left) to LMC (right) whichever way the size grows; the limits
         # are shown with the decimals that keep them apart
