@@ -174,8 +174,11 @@ def _props(view) -> list:
 
 
 def _label_texts(view) -> list[str]:
-    """The strings of every 3D label, read from the callouts' VTK text actors."""
-    return [a.GetInput() for a in view.actors.get("labels", []) if hasattr(a, "GetInput")]
+    """The strings of every 3D label, read from the callouts' VTK text actors (as given, before
+    any wrapping to the window)."""
+    from viewer.scene3d.overlays import source_text
+
+    return [source_text(a) for a in view.actors.get("labels", []) if hasattr(a, "GetInput")]
 
 
 def _settled(v) -> bool:
@@ -230,7 +233,7 @@ def test_slider_moves_keep_the_3d_actors_and_their_text_follows(qtbot):
     # the usual display precision (Units.decimals) -- a label that did not follow would be off by more
     from viewer.scene3d.clearance import LOCAL_GAP
 
-    tight = [t.split(" (")[0][len(LOCAL_GAP):] for t in _label_texts(v) if t.startswith(LOCAL_GAP + " ")]
+    tight = [t.split(" (")[0][len(LOCAL_GAP):] for t in _label_texts(v) if t.startswith(LOCAL_GAP + "\n")]
     assert len(tight) == 1 and tight[0].endswith(f" {u.value}")  # one label at the tightest spot
     assert abs(float(tight[0].split()[0]) - gap) <= 0.5 * 10 ** -u.decimals + 1e-9
     # a burst of moves before the event loop turns costs one rebuild and one frame

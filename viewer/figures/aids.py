@@ -149,14 +149,101 @@ def _spread_y(targets: list[float], lo: float, hi: float, min_gap: float) -> lis
     return out
 
 
-def _legend_top(ax, leg) -> float:
-    """Top of a legend in axes fraction (the legend is measured with a renderer)."""
+def _renderer(fig):
+    """A renderer to measure the figure's artists with (the figure's Agg canvas, made if needed)."""
     from matplotlib.backends.backend_agg import FigureCanvasAgg
 
-    fig = ax.figure
     canvas = fig.canvas if isinstance(fig.canvas, FigureCanvasAgg) else FigureCanvasAgg(fig)
-    bb = leg.get_window_extent(canvas.get_renderer())
+    return canvas.get_renderer()
+
+
+def _legend_top(ax, leg) -> float:
+    """Top of a legend in axes fraction (the legend is measured with a renderer)."""
+    bb = leg.get_window_extent(_renderer(ax.figure))
     return float(ax.transAxes.inverted().transform((bb.x1, bb.y1))[1])
+
+
+def _slot(ax):
+    """The axes' slot as it was given (figure fraction), before :func:`_legend_beside` narrowed it."""
+    return getattr(ax, "_matezone_slot", None) or ax.get_position(original=True)
+
+
+LEGEND_SHARE = 0.36  # of its slot's width a legend beside the drawing takes before its labels wrap
+LEGEND_WRAP = 30  # characters a line of a wrapped legend label
+
+
+def _legend_beside(ax, handles, fs: float, gap_pt: float = 5.0, **kw):
+    """The legend outside the drawing: right of the axes, level with their foot, inside the
+    axes' slot; the axes are narrowed by the legend's width (so call it before the limits are
+    fitted to the axes' shape). A legend taller than the slot is drawn smaller (down to 0.7 of
+    ``fs``). Returns the legend."""
+    fig = ax.figure
+    pos = _slot(ax)
+    ax._matezone_slot = pos
+    r = _renderer(fig)
+    wpx, hpx = fig.get_figwidth() * fig.dpi, fig.get_figheight() * fig.dpi
+    labels = [h.get_label() for h in handles]
+    size, wrap = fs, None
+    while True:
+        shown = labels if wrap is None else ["\n".join(textwrap.wrap(t, wrap)) for t in labels]
+        leg = ax.legend(handles=handles, labels=shown, loc="lower left", bbox_to_anchor=(1.0, 0.0), fontsize=size,
+                        borderaxespad=0.0, **kw)
+        bb = leg.get_window_extent(r)
+        if wrap is None and bb.width > LEGEND_SHARE * pos.width * wpx:
+            wrap = LEGEND_WRAP  # a wide legend takes the drawing's room: its long labels on two lines
+            continue
+        if bb.height <= pos.height * hpx or size <= fs * 0.7:
+            break
+        size *= 0.9
+    gap = gap_pt / 72.0 * fig.dpi / wpx
+    width = max(pos.width - bb.width / wpx - gap, 0.3 * pos.width)
+    ax.set_position([pos.x0, pos.y0, width, pos.height])
+    leg.set_bbox_to_anchor((1.0 + gap / width, 0.0), transform=ax.transAxes)
+    return leg
+
+
+def _keep_inside(ax, skip=("footer",), pad_pt: float = 1.0) -> None:
+    """Move every text of the axes (callouts, notes; not the ``skip`` gids) that reaches past the
+    axes' edges back inside them (an annotation's arrow follows its text); a text wider or taller
+    than the axes is drawn smaller until it fits."""
+    r = _renderer(ax.figure)
+    pad = pad_pt / 72.0 * ax.figure.dpi
+    for t in list(ax.texts):
+        if t.get_gid() in skip or not t.get_visible() or not t.get_text():
+            continue
+        for _ in range(6):
+            box, bb = ax.get_window_extent(r), t.get_window_extent(r)
+            if bb.width <= box.width - 2 * pad and bb.height <= box.height - 2 * pad:
+                break
+            t.set_fontsize(t.get_fontsize() * 0.9)
+        box, bb = ax.get_window_extent(r), t.get_window_extent(r)
+        dx = max(0.0, box.x0 + pad - bb.x0) - max(0.0, bb.x1 - (box.x1 - pad))
+        dy = max(0.0, box.y0 + pad - bb.y0) - max(0.0, bb.y1 - (box.y1 - pad))
+        if dx or dy:
+            _shift_text(ax, t, dx, dy)
+
+
+def _shift_text(ax, t, dx: float, dy: float) -> None:
+    """Move a text (or an annotation's text) by (dx, dy) display pixels."""
+    from matplotlib.text import Annotation
+
+    if isinstance(t, Annotation):
+        coords = t.anncoords
+        x, y = t.xyann
+        if coords == "offset points":
+            k = 72.0 / ax.figure.dpi
+            t.xyann = (x + dx * k, y + dy * k)
+            return
+        if coords == "offset pixels":
+            t.xyann = (x + dx, y + dy)
+            return
+        tr = {"axes fraction": ax.transAxes, "data": ax.transData, "figure fraction": ax.figure.transFigure}[coords]
+        px = tr.transform((x, y))
+        t.xyann = tuple(tr.inverted().transform((px[0] + dx, px[1] + dy)))
+        return
+    tr = t.get_transform()
+    px = tr.transform(t.get_position())
+    t.set_position(tuple(tr.inverted().transform((px[0] + dx, px[1] + dy))))
 
 
 def _column(ax, calls, xfrac, lo, hi, fs, ha="left", gap=None):
@@ -190,7 +277,7 @@ def _footer(fig, ax, own, text_lines, fs):
         fig.text(0.03, 0.025, "\n".join(text_lines), fontsize=fs * 0.85, color=S.TEXT, va="bottom", ha="left",
                  gid="footer")
     else:
-        w_pt = ax.get_position(original=True).width * fig.get_figwidth() * 72.0
+        w_pt = _slot(ax).width * fig.get_figwidth() * 72.0
         chars = max(30, int(w_pt / (fs * 0.85 * 0.52)))
         lines = [w for ln in text_lines for w in textwrap.wrap(ln, chars)]
         ax.text(0.0, -0.01, "\n".join(lines), transform=ax.transAxes, fontsize=fs * 0.85, va="top",

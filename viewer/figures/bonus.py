@@ -18,7 +18,7 @@ from geom.boundaries import tolerance_allowed, virtual_condition
 from geom.model import Feature, Kind, Standard
 from viewer import style as S
 
-from .aids import DPI, FIGSIZE, _spread_y, _title, style_context
+from .aids import DPI, FIGSIZE, _keep_inside, _spread_y, _title, style_context
 from .subjects import Measured, Subject, _subject, measured_of, resolve_states
 
 
@@ -94,6 +94,8 @@ def bonus_chart(res: SceneResult, subject, states=None, *, fig: Figure | None = 
             B = term("bonus", res.scene.standard)[0]
             _title(fig, None, True, f"{B[0].upper() + B[1:]}: tolerance allowed vs produced size\n{data.subject.title}",
                    fontsize)
+        for ax in fig.axes[-2 * n:]:
+            _keep_inside(ax)
     return fig, data
 
 

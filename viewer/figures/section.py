@@ -17,7 +17,7 @@ from geom.boundaries import effective_size
 from geom.placement import worst_case_axis
 from viewer.exaggeration import FILL, Exaggeration, features_exaggeration, range_spread
 
-from .aids import FIGSIZE, _clean_axes, _footer, _new_figure, _scale_bar, _title, style_context
+from .aids import FIGSIZE, _clean_axes, _footer, _keep_inside, _new_figure, _scale_bar, _title, style_context
 from .section_steps import (
     _draw_break_marks,
     _draw_datum,
@@ -123,6 +123,7 @@ def section_view(res: SceneResult, subject, states=None, exaggeration: float | N
         _title(fig, ax, own, f"Section in the plane of the tilt ({dir_txt} on A)\n{data.subject.title}", fontsize)
         _footer(fig, ax, own, [data.exaggeration.label(u), _state_line(res, data.states)], fontsize)
         _scale_bar(ax, data.exaggeration, u, fontsize, height=0.13)
+        _keep_inside(ax)
     return fig, data
 
 

@@ -30,7 +30,7 @@ from .aids import (
     _column,
     _fit_limits,
     _gap_text,
-    _legend_top,
+    _legend_beside,
     _narrow_dim,
     _poly_path,
 )
@@ -68,6 +68,8 @@ class _Frame:
     step: float  # spacing of the dimension levels
     top_dims: tuple  # features whose zone width is dimensioned above the drawing
     bot_dims: tuple  # ... below it (the pin of a mate)
+    ylo: float  # bottom of the drawing's limits (dimension levels included)
+    yhi: float  # top of them
 
 
 def _frame(ax, d: SectionData) -> _Frame:
@@ -87,10 +89,28 @@ def _frame(ax, d: SectionData) -> _Frame:
     bot_dims = tuple(f for f in sub.features if f.tolerance is not None and sub.is_mate and f.kind is Kind.PIN)
     ylo = min(zmin, -plate) - step * (0.9 + len(bot_dims))
     yhi = ztop + step * (0.9 + len(top_dims))
+    fr = _Frame(u, Lmax, zmin, ztop, xr, plate, step, top_dims, bot_dims, ylo, yhi)
+    _limits(ax, fr)
+    return fr
+
+
+def _limits(ax, fr: _Frame, left: float = 0.22, right: float = 0.0) -> None:
+    """The section's limits for the axes' shape: the drawing in the middle, texts beside (at
+    least ``left`` and ``right`` of the width kept for them, axes fractions)."""
     dfrac = 0.5 if _box_ratio(ax) < 1.65 else 0.4  # narrower drawing in a wide report slot
-    W = max(2 * xr / dfrac, (yhi - ylo) * _box_ratio(ax))
-    _fit_limits(ax, -xr - 0.22 * W, -xr + 0.78 * W, ylo, yhi, anchor=(0.5, 0.5))
-    return _Frame(u, Lmax, zmin, ztop, xr, plate, step, top_dims, bot_dims)
+    dfrac = max(0.4, min(dfrac, 1.0 - left - right))  # the drawing keeps 0.4 of the width at least
+    W = max(2 * fr.xr / dfrac, (fr.yhi - fr.ylo) * _box_ratio(ax))
+    _fit_limits(ax, -fr.xr - left * W, -fr.xr + (1 - left) * W, fr.ylo, fr.yhi, anchor=(0.5, 0.5))
+
+
+def _column_share(ax, calls: list, fs: float) -> float:
+    """About the share of the axes' width a column of these callouts takes (their longest line
+    at an average glyph width of 0.55 em, common practice, no source), with its arrow's room."""
+    if not calls:
+        return 0.0
+    chars = max(len(line) for c in calls for line in c[1].splitlines())
+    w_pt = ax.get_position(original=True).width * ax.figure.get_figwidth() * 72.0
+    return (0.55 * fs * chars + 10.0) / w_pt
 
 
 def _draw_parts(ax, d: SectionData, fr: _Frame, un, fs: float, legend: list) -> dict:
@@ -286,11 +306,13 @@ def _draw_break_marks(ax, ex, fr: _Frame):
 
 
 def _place_texts(ax, fr: _Frame, legend: list, left_calls: list, right_calls: list, fs: float):
-    """Callouts in a column left of the drawing and right of it, above the legend."""
+    """The legend beside the axes (outside the drawing, the limits fitted again to the narrowed
+    axes), then the callouts in a column left of the drawing and right of it."""
     xr = fr.xr
+    _legend_beside(ax, legend, fs * 0.72, frameon=True, framealpha=0.95, edgecolor=S.PART, handlelength=2.6)
+    left = min(0.3, max(0.22, _column_share(ax, left_calls, fs * 0.9) + 0.02))
+    _limits(ax, fr, left, _column_share(ax, right_calls, fs * 0.9) + 0.03)
     tl = ax.transLimits
     _column(ax, left_calls, float(tl.transform((-xr * 1.1, 0))[0]) - 0.01, 0.25, 0.9, fs * 0.9, ha="right")
     xcol = float(tl.transform((xr, 0))[0]) + 0.03
-    leg = ax.legend(handles=legend, loc="lower left", bbox_to_anchor=(xcol, 0.0), fontsize=fs * 0.72, frameon=True,
-                    framealpha=0.95, edgecolor=S.PART, borderaxespad=0.0, handlelength=2.6)
-    _column(ax, right_calls, xcol, _legend_top(ax, leg) + 0.04, 0.86, fs * 0.9, ha="left")
+    _column(ax, right_calls, xcol, 0.1, 0.86, fs * 0.9, ha="left")

@@ -35,7 +35,8 @@ from .aids import (
     _fit_limits,
     _footer,
     _gap_text,
-    _legend_top,
+    _keep_inside,
+    _legend_beside,
     _new_figure,
     _poly_path,
     _scale_bar,
@@ -133,6 +134,7 @@ def through_view(res: SceneResult, subject, states=None, exaggeration: float | N
         if so:
             foot.append(so)
         _footer(fig, ax, own, foot, fontsize)
+        _keep_inside(ax)
     return fig, data
 
 
@@ -186,12 +188,12 @@ def _draw_through(ax, res: SceneResult, d: ThroughData, fs: float):
     if d.hole is not None and d.pin is not None:
         _draw_fit(ax, res, d, legend, calls)
     ax.plot([0], [0], marker="+", color=S.ZONE_AXIS, ms=8, mew=1.0, zorder=8)
+    # the legend beside the axes (outside the drawing), then the drawing and its callouts in them
+    _legend_beside(ax, legend, fs * 0.78, frameon=True, framealpha=0.95, edgecolor=S.PART, handlelength=2.4)
     W = max(2.1 * R / 0.62, 2.2 * R * _box_ratio(ax))
     _fit_limits(ax, -1.05 * R - 0.01 * W, -1.05 * R + 0.99 * W, -1.1 * R, 1.1 * R, anchor=(0.0, 0.5))
     xcol = float(ax.transLimits.transform((1.05 * R, 0))[0]) + 0.03
-    leg = ax.legend(handles=legend, loc="lower left", bbox_to_anchor=(xcol - 0.01, 0.0), fontsize=fs * 0.78,
-                    frameon=True, framealpha=0.95, edgecolor=S.PART, borderaxespad=0.0, handlelength=2.4)
-    _column(ax, calls, xcol, _legend_top(ax, leg) + 0.04, 0.97, fs, ha="left")
+    _column(ax, calls, xcol, 0.06, 0.94, fs, ha="left")
 
 
 def _draw_hole(ax, res, d: ThroughData, reach, legend, calls):

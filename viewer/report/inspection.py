@@ -54,6 +54,8 @@ from .readings import (
 DISAGREE_TITLE = "NOTE: READINGS THAT DISAGREE"
 LOWER_SIZES = (6.0, 5.7, 5.4, 5.1, 4.8)  # text sizes tried for the inspection page's lower blocks
 IMAGE_MIN = 1.3  # smallest height of the inspection pictures, inches
+INSPECTION_TITLE = "INSPECTION EVIDENCE"
+INSPECTION_SUBTITLE = "a produced feature judged against its tolerance"
 
 
 # ------------------------------------------------------------------------------ the lower blocks
@@ -258,8 +260,7 @@ def build_inspection_page(res: SceneResult, insp, images=(), page_no: int = 1, p
     readings disagree), the explanation, disposition, signatures and the caution. Every number
     comes from ``insp`` (:class:`geom.inspect.InspectionResult`), formatted at the units' precision."""
     char, tol = requirement_of(insp.feature, res.scene.units)
-    with evidence_page(res, "INSPECTION EVIDENCE", "a produced feature judged against its tolerance", char, tol,
-                       page_no, pages) as (p, y):
+    with evidence_page(res, INSPECTION_TITLE, INSPECTION_SUBTITLE, char, tol, page_no, pages) as (p, y):
         y = _verdict_box(p, insp, y + 0.08)
         y, fs_low = _pictures(p, insp, images, caption, legend, files, y)
         y = _inspection_lower(p, insp, MARGIN, y, CONTENT_W, fs_low)
@@ -310,13 +311,12 @@ def _verdict_box(p: _Page, insp, y: float) -> float:
     return y + (bh + 0.08)
 
 
-def _pictures(p: _Page, insp, images, caption: str, legend, files, y: float) -> tuple[float, float]:
-    """The 3D pictures side by side, the colour key (and the deviation bar) and the caption, in
-    the height the blocks below leave them: returns the y below and the text size those blocks
-    take (long explanations, as geom writes them where readings disagree, take a smaller size)."""
+def _picture_layout(p: _Page, insp, n_img: int, caption: str, legend, files, y: float) -> dict:
+    """The sizes of the pictures block starting at ``y``: the text size the blocks below take
+    (``fs_low``), the pictures' height (``img_h``) and width each (``gw``), the colour key's rows
+    and height, the caption's lines and height; measured with a dry run of the blocks below."""
     x0, W = MARGIN, CONTENT_W
     fs = 6.0
-    # ---------------------------------------------------------------- sizes of the blocks below
     dry = _DryPage(p.fig)
     leg = list(legend)
     leg_rows = (len(leg) + 1) // 2
@@ -337,18 +337,49 @@ def _pictures(p: _Page, insp, images, caption: str, legend, files, y: float) -> 
         img_h = room - _inspection_lower(dry, insp, x0, 0.0, W, fs_low)
         if img_h >= IMAGE_MIN:
             break
-    img_h = float(min(3.0, max(IMAGE_MIN, img_h)))
+    n = max(1, n_img)
+    return dict(fs=fs, fs_low=fs_low, img_h=float(min(3.0, max(IMAGE_MIN, img_h))), gap=PICTURE_GAP,
+                gw=(W - PICTURE_GAP * (n - 1)) / n, leg=leg, leg_rows=leg_rows, leg_h=leg_h, cl=cl, cap_h=cap_h)
+
+
+PICTURE_GAP = 0.12  # inches between the inspection page's pictures
+PICTURES_TOP = 0.15  # inches from the block's heading to its pictures
+
+
+def inspection_image_slot(res: SceneResult, insp, n_images: int, caption: str = "", legend=(),
+                          files: tuple[str, ...] = ()) -> tuple[float, float]:
+    """(width, height) in inches of the box each of the inspection page's ``n_images`` 3D
+    pictures is printed into, from a dry run of the page down to the pictures (the layout
+    :func:`build_inspection_page` draws with the same caption, legend and file names)."""
+    char, tol = requirement_of(insp.feature, res.scene.units)
+    with evidence_page(res, INSPECTION_TITLE, INSPECTION_SUBTITLE, char, tol, 1, 1) as (p, y):
+        dry = _DryPage(p.fig)
+        y = _verdict_box(dry, insp, y + 0.08)
+        lay = _picture_layout(dry, insp, n_images, caption, legend, files, y)
+    return lay["gw"], lay["img_h"] - TITLE_BAND
+
+
+TITLE_BAND = 0.12  # inches over each 3D picture kept for its title
+
+
+def _pictures(p: _Page, insp, images, caption: str, legend, files, y: float) -> tuple[float, float]:
+    """The 3D pictures side by side, the colour key (and the deviation bar) and the caption, in
+    the height the blocks below leave them (:func:`_picture_layout`): returns the y below and the
+    text size those blocks take (long explanations, as geom writes them where readings disagree,
+    take a smaller size)."""
+    x0, W = MARGIN, CONTENT_W
+    lay = _picture_layout(p, insp, len(images), caption, legend, files, y)
+    fs, fs_low, img_h, gw, gap = lay["fs"], lay["fs_low"], lay["img_h"], lay["gw"], lay["gap"]
+    leg, leg_rows, leg_h, cl, cap_h = lay["leg"], lay["leg_rows"], lay["leg_h"], lay["cl"], lay["cap_h"]
     # ---------------------------------------------------------------- 3D pictures
     p.text(x0, y, "3D VIEWS OF THE MEASURED FEATURE", fontsize=7, weight="bold")
-    y += 0.15
-    n_img = max(1, len(images))
-    gap = 0.12
-    gw = (W - gap * (n_img - 1)) / n_img
+    y += PICTURES_TOP
     for i, (label, img) in enumerate(images):
         xi = x0 + i * (gw + gap)
-        ax = p.fig.add_axes(p.rect(xi, y, gw, img_h))
+        # the picture under its title's band: the title never lies over the drawing
+        ax = p.fig.add_axes(p.rect(xi, y + TITLE_BAND, gw, img_h - TITLE_BAND))
         ax.set_axis_off()
-        ax.imshow(crop_to_content(img, aspect=gw / img_h), interpolation="antialiased")
+        ax.imshow(crop_to_content(img, aspect=gw / (img_h - TITLE_BAND)), interpolation="antialiased")
         ax.set_aspect("equal")
         p.box(xi - 0.02, y - 0.02, gw + 0.04, img_h + 0.04, lw=0.4, ec=S.PART)
         p.text(xi + 0.04, y + 0.03, label, fontsize=6.5, weight="bold", color=GREY)

@@ -24,8 +24,8 @@ from viewer import figures as F
 
 from .fastener import FASTENERS_PER_PAGE, build_fastener_page, fastener_figure
 from .fit import VIEW_FILES, build_page, image_slot_3d, item_states, printed_height, report_items
-from .inspection import build_inspection_page
-from .page import crop_to_content
+from .inspection import build_inspection_page, inspection_image_slot
+from .page import PAGE_3D_ASPECT, crop_to_content
 from .readings import scene_inspections
 
 VECTOR_FORMATS = ("svg", "pdf")
@@ -60,20 +60,35 @@ def page_image_3d(scene3d_obj, view: str) -> np.ndarray:
 
 LABEL_MIN_PT = 6.0  # the least printed size of a 3D label on a page
 _LABEL_AIM_PT = 6.4  # what the page picture's labels are drawn for (crops move a little)
+_CROP_PAD = 0.04  # crop_to_content's default pad
 
 
-def label_fit(slot: tuple[float, float], aim_pt: float = _LABEL_AIM_PT):
+def label_fit(slot: tuple[float, float], aim_pt: float = _LABEL_AIM_PT, aspect: float = PAGE_3D_ASPECT):
     """The ``fit`` of :func:`viewer.scene3d.render_variants` for a page picture printed in
-    ``slot`` (width, height in inches) after :func:`crop_to_content`: the label scale at which
-    the smallest label prints at ``aim_pt`` points (never smaller than drawn)."""
+    ``slot`` (width, height in inches) after :func:`crop_to_content` to ``aspect`` (the page's
+    crop): the label scale at which the smallest label prints at ``aim_pt`` points (never
+    smaller than drawn)."""
 
     def fit(img: np.ndarray, label_px: float) -> float:
-        crop = crop_to_content(img)
+        crop = crop_to_content(img, aspect=aspect)
         fit.last = (img, crop)  # the crop of the picture judged last, for the page to reuse
+        if fit.base is None:  # render_variants asks first at label scale 1
+            fit.base, fit.crop_h = label_px, crop.shape[0]
         pt = label_px * printed_height(crop.shape, slot) * 72.0 / crop.shape[0]
-        return 1.0 if pt >= aim_pt else aim_pt / pt * 1.04
+        # larger labels reach further, so the crop (and the picture's reduction) grows: as much
+        # again as it grew since the last picture is allowed for, never past the crop of the
+        # whole picture (labels stay in the window)
+        h, w = img.shape[:2]
+        whole = max(h * (1 + 2 * _CROP_PAD), w * (1 + 2 * _CROP_PAD) / aspect)
+        grew = max(1.0, min(crop.shape[0] / fit.crop_h, whole / crop.shape[0]))
+        fit.crop_h = crop.shape[0]
+        if pt >= aim_pt or (label_px > fit.base and pt >= LABEL_MIN_PT):  # enlarged: the least will do
+            return 1.0
+        # the scale asked for is absolute: the labels are now drawn at label_px / base
+        return aim_pt / pt * 1.04 * grew * label_px / fit.base
 
     fit.last = (None, None)
+    fit.base = fit.crop_h = None
     return fit
 
 
@@ -83,10 +98,34 @@ def _page_crop(variant: tuple, img: np.ndarray) -> np.ndarray:
     return last[1] if last[0] is img else crop_to_content(img)
 
 
-def page_variant(slot: tuple[float, float]) -> tuple:
-    """The ``render_variants`` entry of a page picture printed in ``slot``: no text overlays,
-    labels drawn to print at :data:`LABEL_MIN_PT` or more."""
-    return (None, _page_layers(), label_fit(slot))
+def page_variant(slot: tuple[float, float], aspect: float = PAGE_3D_ASPECT) -> tuple:
+    """The ``render_variants`` entry of a page picture printed in ``slot`` after a crop to
+    ``aspect``: no text overlays, labels drawn to print at :data:`LABEL_MIN_PT` or more."""
+    return (None, _page_layers(), label_fit(slot, aspect=aspect))
+
+
+def inspection_variants(res: SceneResult, insp, s3, view: str, pngs) -> list[dict]:
+    """Per camera of an inspection (:func:`_inspection_views`) the full picture (written to its
+    PNG in ``pngs``) and the page's, its labels drawn to print at :data:`LABEL_MIN_PT` or more in
+    the slot the inspection page gives each picture (:func:`inspection_image_slot`, cropped to
+    the slot's shape as the page crops it). A slot wider than :data:`RENDER_SIZE` has its page
+    picture rendered as wide (same height), so labels grown for print stay in the picture."""
+    from viewer import scene3d
+
+    cams = _inspection_views(view)
+    slot = inspection_image_slot(res, insp, len(cams), s3.caption, s3.legend, tuple(q.name for q in pngs))
+    aspect = slot[0] / slot[1]
+    wide = (max(RENDER_SIZE[0], round(RENDER_SIZE[1] * aspect)), RENDER_SIZE[1])
+    out = []
+    for q, v in zip(pngs, cams):
+        if wide == RENDER_SIZE:  # one plotter for both
+            out.append(scene3d.render_variants(s3, v, {"full": (q, None), "page": page_variant(slot, aspect)},
+                                               size=RENDER_SIZE))
+            continue
+        pic = scene3d.render_variants(s3, v, {"full": (q, None)}, size=RENDER_SIZE)
+        pic.update(scene3d.render_variants(s3, v, {"page": page_variant(slot, aspect)}, size=wide))
+        out.append(pic)
+    return out
 
 
 def _inspection_views(view: str) -> list[str]:
@@ -182,9 +221,8 @@ def write_report(res: SceneResult, out_dir, sizes: dict[str, float] | None = Non
         key = f"inspection_{file_slug(fid)}"
         cams = _inspection_views(view)
         pngs = [out / f"{key}_3d_{v}.png" for v in cams]
-        # per camera the full picture (the PNG) and the page's (no text overlays), one plotter each
-        pics = [scene3d.render_variants(s3, v, {"full": (q, None), "page": (None, _page_layers())}, size=RENDER_SIZE)
-                for q, v in zip(pngs, cams)]
+        # per camera the full picture (the PNG) and the page's (no text overlays, labels sized for its slot)
+        pics = inspection_variants(res, insp, s3, view, pngs)
         written += pngs
         images = [(INSPECTION_VIEW_NAMES.get(v, v), pic["page"]) for v, pic in zip(cams, pics)]
         insp_pages[fid] = (images, s3.caption, s3.legend, tuple(q.name for q in pngs))

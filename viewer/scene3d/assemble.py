@@ -143,7 +143,7 @@ def _finish(res: SceneResult, b: _Built, ex: _Ex, title: str, readouts: list[str
     bars, marks = scale_bars(ex, box, direction_deg, res.scene.units)
     for name, mesh, style in bars:
         b.add("scale", name, mesh, style)
-    b.labels += [Label(p, text, S.TEXT, 13, layer="scale") for p, text in marks]
+    b.labels += [Label(p, text, S.TEXT, 14, layer="scale") for p, text in marks]
     layers = {name: tuple(b.layers[name]) for name in LAYERS if b.layers.get(name)}
     box = _box(b)
     cams, scale, section = _cameras(box, direction_deg, ex.c)

@@ -22,7 +22,8 @@ from .. import style as S
 
 PAD = 4.0  # pixels kept between a label and anything else
 LEADER = "#5C636A"  # the leader lines' grey
-MARKER_POINTS = 16  # a point mesh with at most this many points is a marker labels keep clear of
+MARKER_POINTS = 16
+WRAP = 0.6  # a label wider than this share of the window is broken into rows at its words  # a point mesh with at most this many points is a marker labels keep clear of
 
 # offsets tried, in units of (label width, label height) from the preferred place, nearest first
 _STEPS = [(0, 0)] + sorted(
@@ -122,9 +123,11 @@ class Callouts:
         self.labels = list(labels)
         self.anchors = np.array([lb.point for lb in self.labels], float).reshape(-1, 3)
         self.texts: list = []
+        from .overlays import _set_wrapped
+
+        wrap = WRAP * max(plotter.window_size[0], 1)
         for lb, fpx in zip(self.labels, font_px):
             t = vtk.vtkTextActor()
-            t.SetInput(lb.text)
             tp = t.GetTextProperty()
             tp.SetFontFamilyAsString(S.FONT_FAMILY.capitalize())
             tp.BoldOn()
@@ -137,6 +140,7 @@ class Callouts:
             tp.SetFrameColor(*S.rgb(S.TEXT))
             tp.SetJustificationToLeft()
             tp.SetVerticalJustificationToBottom()
+            _set_wrapped(t, lb.text, wrap, hang=0)  # a long label (or one drawn large for print) on two rows
             plotter.renderer.AddViewProp(t)
             self.texts.append(t)
         self._lines = vtk.vtkPolyData()
@@ -183,9 +187,12 @@ class Callouts:
     def set(self, labels) -> None:
         """New texts, colours and anchors of the same labels (the window's what-if path)."""
         labels = list(labels)
+        from .overlays import drawn_text
+
         for t, old, lb in zip(self.texts, self.labels, labels):
             if lb.text != old.text:
-                t.SetInput(lb.text)
+                t.SetInput(drawn_text(t, lb.text))
+                t._matezone_text = lb.text
             if lb.colour != old.colour:
                 t.GetTextProperty().SetColor(*S.rgb(lb.colour))
         self.labels = labels

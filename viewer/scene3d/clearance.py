@@ -128,7 +128,8 @@ def _mate_surface(b: _Built, hole: MateSide, pin: MateSide, ex: _Ex, units: Unit
     b.add("clearance", "tightest spot", _points(np.array(spot_pts)),
           dict(color=colour, point_size=16, render_points_as_spheres=True, lighting=False))
     b.add("clearance", "gap at tightest spot", _segments(np.array(ends)), _line(colour, 3.0))
-    txt = (LOCAL_OVERLAP if interferes else LOCAL_GAP) + " " + units.fmt(c_tight, signed=True) + f" {units.value}"
+    # the name on one row, the value on the next: a short callout, legible when drawn large for print
+    txt = (LOCAL_OVERLAP if interferes else LOCAL_GAP) + "\n" + units.fmt(c_tight, signed=True) + f" {units.value}"
     txt += f" ({_per_side(units, c_tight)} a side)"
     cx = ex.c
     for p in spot_pts[:1]:  # the same words at a second spot would be the label drawn twice

@@ -59,17 +59,17 @@ def _place_caption(t, kind: str, w: int, h: int, fs: int, left_w: float, y: floa
     return y - _text_box(t.GetInput(), tp)[1] - 0.3 * fs
 
 
-def _set_wrapped(t, text: str, width: float) -> None:
+def _set_wrapped(t, text: str, width: float, hang: int = 2) -> None:
     """Give the text actor ``t`` the string ``text`` wrapped to ``width`` pixels, remembering
     both (:func:`drawn_text` wraps a later string the same way)."""
-    t._matezone_text, t._matezone_wrap = text, width
-    t.SetInput(_wrap(text, t.GetTextProperty(), width))
+    t._matezone_text, t._matezone_wrap, t._matezone_hang = text, width, hang
+    t.SetInput(_wrap(text, t.GetTextProperty(), width, hang))
 
 
 def drawn_text(t, text: str) -> str:
     """``text`` as the text actor ``t`` draws it: wrapped as :func:`_set_wrapped` wrapped its own."""
     width = getattr(t, "_matezone_wrap", None)
-    return text if width is None else _wrap(text, t.GetTextProperty(), width)
+    return text if width is None else _wrap(text, t.GetTextProperty(), width, getattr(t, "_matezone_hang", 2))
 
 
 def source_text(t) -> str:
@@ -77,16 +77,16 @@ def source_text(t) -> str:
     return getattr(t, "_matezone_text", None) or t.GetInput()
 
 
-def _wrap(text: str, tp, width: float) -> str:
+def _wrap(text: str, tp, width: float, hang: int = 2) -> str:
     """``text`` with each of its lines broken at spaces into lines no wider than ``width`` pixels
     (a word longer than that stands on its own line); a broken line goes on indented as far as it
-    was, plus two spaces."""
+    was, plus ``hang`` spaces."""
     out: list[str] = []
     for line in text.split("\n"):
         if _text_box(line, tp)[0] <= width:
             out.append(line)
             continue
-        indent = " " * (len(line) - len(line.lstrip(" ")) + 2)
+        indent = " " * (len(line) - len(line.lstrip(" ")) + hang)
         rows: list[str] = []
         for word in line.split(" "):
             if rows and (word == "" or _text_box(rows[-1] + " " + word, tp)[0] <= width):

@@ -11,7 +11,7 @@ the picture as on the 2D views (:func:`viewer.exaggeration.bar_length` picks bot
 >>> [(name, round(float(np.ptp(m.points[:, 0])), 6), round(float(np.ptp(m.points[:, 2])), 6)) for name, m, _ in parts[0]]
 [('scale bar across', 1.0, 0.48), ('scale bar along the axis', 0.48, 5.0)]
 >>> [lb for _p, lb in parts[1]]
-['0.020 mm true across (drawn x50)', '5.000 mm true along the axis']
+['0.020 mm true\\n(drawn x50)', '5.000 mm true']
 """
 
 from __future__ import annotations
@@ -47,10 +47,10 @@ def scale_bars(ex, box, direction_deg: float, units) -> tuple[list, list]:
     if ex.k != 1.0:
         ends = np.array([[o, a_end], [o - tick * z, o + tick * z], [a_end - tick * z, a_end + tick * z]])
         meshes.append(("scale bar across", _segments(ends), style))
-        labels.append((tuple(a_end + tick * z), f"{units.fmt(across)} {units.value} true across (drawn x{ex.k:g})"))
+        labels.append((tuple(a_end + tick * z), f"{units.fmt(across)} {units.value} true\n(drawn x{ex.k:g})"))
     along = bar_length(1.0, 0.5 * max(z1 - max(z0, 0.0), 1e-9))
     top = o + along * z
     ends = np.array([[o, top], [o - tick * u, o + tick * u], [top - tick * u, top + tick * u]])
     meshes.append(("scale bar along the axis", _segments(ends), style))
-    labels.append((tuple(top), f"{units.fmt(along)} {units.value} true" + (" along the axis" if ex.k != 1.0 else "")))
+    labels.append((tuple(top), f"{units.fmt(along)} {units.value} true"))
     return meshes, labels
