@@ -15,26 +15,58 @@ from .views import draw_problem
 MARKS_MEASURED = ("through", "bonus")  # the 2D views that mark a measured part when one is shown
 
 
+def font_scale() -> float:
+    """The desktop's text size against the one the figures are drawn for (9 pt at 96 dots per
+    inch, 12 pixels), from the application font as Qt renders it; 1 to 1.6."""
+    from PyQt5.QtGui import QFontInfo
+    from PyQt5.QtWidgets import QApplication
+
+    app = QApplication.instance()
+    if app is None:
+        return 1.0
+    px = QFontInfo(app.font()).pixelSize()
+    return min(1.6, max(1.0, px / 12.0))
+
+
+MIN_PAGE = (6.0, 4.5)  # inches: the smallest page the figures are laid out for
+
+
+def pane_figsize(w_px: float, h_px: float, scale: float) -> tuple[float, float]:
+    """The page (inches) to draw a window figure on for a pane of ``w_px`` x ``h_px`` pixels so
+    its text shows at ``scale`` times 9 pt at 96 dots per inch: the pane at 96 x ``scale`` dots
+    per inch, grown (aspect kept) to at least :data:`MIN_PAGE`, which the figures' layout needs.
+
+    >>> pane_figsize(960, 720, 1.0), pane_figsize(480, 360, 1.0)
+    ((10.0, 7.5), (6.0, 4.5))
+    """
+    d = 96.0 * scale
+    fw, fh = max(w_px, 1.0) / d, max(h_px, 1.0) / d
+    k = max(1.0, MIN_PAGE[0] / fw, MIN_PAGE[1] / fh)
+    return fw * k, fh * k
+
+
 def _fit_canvas_class():
     from matplotlib.backends.backend_qt5agg import FigureCanvasQTAgg
 
     class FitCanvas(FigureCanvasQTAgg):
-        """A canvas that scales the figure's resolution so its designed page (8 x 6 in) fits the
-        widget: the layout the figure was drawn for is kept, text just gets smaller."""
-
-        DESIGN = (8.0, 6.0)
+        """A canvas that scales the figure's resolution so the page the figure was drawn for
+        (:func:`pane_figsize` for the window's figures, else its own size) fits the widget: the
+        layout is kept, the text scales with the widget."""
 
         def fit_dpi(self, w: float, h: float) -> float:
-            return max(40.0, min(w / self.DESIGN[0], h / self.DESIGN[1]))
+            fw, fh = getattr(self.figure, "_matezone_page", None) or self.figure.get_size_inches()
+            return max(40.0, min(w / fw, h / fh))
 
         def adopt(self, fig) -> None:
+            if getattr(fig, "_matezone_page", None) is None:
+                fig._matezone_page = tuple(fig.get_size_inches())
+            self.figure = fig
             r = self.device_pixel_ratio or 1.0
             w, h = max(self.width(), 200) * r, max(self.height(), 150) * r
             dpi = self.fit_dpi(w, h)
             fig._original_dpi = dpi / r
             fig.set_dpi(dpi)
             fig.set_size_inches(w / dpi, h / dpi, forward=False)
-            self.figure = fig
             fig.set_canvas(self)
 
         def resizeEvent(self, event):
@@ -43,6 +75,8 @@ def _fit_canvas_class():
             self.figure._original_dpi = dpi / r
             self.figure.set_dpi(dpi)
             super().resizeEvent(event)
+            if getattr(self, "on_resize", None) is not None:
+                self.on_resize()
 
     return FitCanvas
 
@@ -68,6 +102,13 @@ class Views2D(QTabWidget):
             self.addTab(c, title)
             self.stale.add(key)
         self.currentChanged.connect(lambda _i: self.refresh_current())
+        # a pane resized: its figures are drawn again for the new page once the resizing stops
+        self._resize_timer = QTimer(self)
+        self._resize_timer.setSingleShot(True)
+        self._resize_timer.setInterval(250)
+        self._resize_timer.timeout.connect(self._repage)
+        for c in self.canvases.values():
+            c.on_resize = self._resize_timer.start
         self._pending = False
         self.draw_error: str | None = None  # the last drawing failure shown, until a draw succeeds
         model.statesChanged.connect(self.schedule)
@@ -98,6 +139,14 @@ class Views2D(QTabWidget):
         if not self._pending:
             self._pending = True
             QTimer.singleShot(0, self.refresh_current)
+
+    def _repage(self) -> None:
+        """Draw the figures again if the pane now asks for another page than they were drawn on."""
+        c = self.canvases[self.current_key()]
+        page = getattr(c.figure, "_matezone_page", None)
+        want = pane_figsize(max(c.width(), 200), max(c.height(), 150), font_scale())
+        if page is not None and max(abs(a - b) / b for a, b in zip(want, page)) > 0.05:
+            self.schedule()
 
     def current_key(self) -> str:
         return self.TABS[self.currentIndex()][0]
@@ -137,7 +186,11 @@ class Views2D(QTabWidget):
             insp = m.shown_inspection()
             if insp is not None and key in MARKS_MEASURED:  # the measured part, not the nominal one
                 kw["measured"] = insp
-            fig, _data = self.figures_mod.draw_view(key, m.result, sub, dict(m.states), **kw)
+            c = self.canvases[key]
+            w, h = max(c.width(), 200), max(c.height(), 150)
+            page = pane_figsize(w, h, font_scale())  # drawn for the pane, text at the desktop's size
+            fig, _data = self.figures_mod.draw_view(key, m.result, sub, dict(m.states), figsize=page, **kw)
+            fig._matezone_page = page
             return fig
 
     def draw(self, key: str) -> None:
