@@ -134,7 +134,26 @@ def bore_and_dowel() -> str:
 
 
 def measured_bore(id: str = "bore", limits=(8.0, 8.022), length=12, value=0.015, measured: dict | None = None,
+                  material: str | None = "MMC", title: str | None = None, standard: str | None = None,
                   **keys) -> str:
-    """One hole to inspect: perpendicularity at MMC to A, optionally with typed values or a
-    points file in ``[feature.measured]``."""
-    return scene_toml(hole(id, limits, length, tolerance=tol("perpendicularity", value), measured=measured, **keys))
+    """One hole to inspect: perpendicularity at ``material`` (MMC) to A, optionally with typed
+    values or a points file in ``[feature.measured]``; ``title`` and ``standard`` are the scene's.
+
+    >>> print(measured_bore("b", measured={"size": 8.004}, material="RFS", standard="iso"), end="")
+    units = "mm"
+    standard = "iso"
+    [[feature]]
+    id = "b"
+    kind = "hole"
+    limits = [8.0, 8.022]
+    length = 12
+    [feature.tolerance]
+    characteristic = "perpendicularity"
+    value = 0.015
+    material = "RFS"
+    datums = ["A"]
+    [feature.measured]
+    size = 8.004
+    """
+    return scene_toml(hole(id, limits, length, tolerance=tol("perpendicularity", value, material),
+                           measured=measured, **keys), title=title, standard=standard)

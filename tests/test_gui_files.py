@@ -33,6 +33,7 @@ if not os.environ.get("DISPLAY"):
     pytest.skip("GUI tests need an X display: run them under xvfb-run -a", allow_module_level=True)
 
 
+from scenetext import hole, scene_toml, tol  # noqa: E402
 from test_gui import _close, _open  # noqa: E402  (one way to open and close the window in tests)
 
 
@@ -270,7 +271,7 @@ def _hostile_files(tmp_path) -> dict[str, Path]:
     p.write_text("x = " + "[" * 5000 + "]" * 5000 + "\n")
     files["5000 nested arrays"] = p
     p = tmp_path / "long_int.toml"
-    p.write_text('title = "t"\nunits = "mm"\nstandard = "asme"\nbig = ' + "7" * 5000 + "\n")
+    p.write_text(scene_toml(title="t", standard="asme") + "big = " + "7" * 5000 + "\n")
     files["an integer of 5000 digits"] = p
     p = tmp_path / "sparse.toml"
     with open(p, "wb") as fh:  # 100 MB without writing it: `truncate -s 100M`
@@ -376,22 +377,8 @@ def test_2d_view_that_cannot_be_drawn_is_a_message_and_the_figure_stays(qtbot, m
 # ---------------------------------------------------------------- 6. free text is never math markup
 
 
-LONE = """
-title = "Price $5 and $x$ title"
-units = "mm"
-standard = "asme"
-[[feature]]
-id = "bore"
-name = "spot $x$ face"
-kind = "hole"
-limits = [10.0, 10.02]
-length = 10.0
-[feature.tolerance]
-characteristic = "perpendicularity"
-value = 0.01
-material = "MMC"
-datums = ["A"]
-"""
+LONE = scene_toml(hole("bore", (10.0, 10.02), 10.0, tolerance=tol("perpendicularity", 0.01), name="spot $x$ face"),
+                  title="Price $5 and $x$ title", standard="asme")
 
 
 def test_dollar_signs_in_names_are_drawn_literally_in_the_2d_views(qtbot, tmp_path):

@@ -28,6 +28,7 @@ if not os.environ.get("DISPLAY"):
     pytest.skip("GUI tests need an X display: run them under xvfb-run -a", allow_module_level=True)
 
 
+from scenetext import fastener, hole, pin, scene_toml, tol  # noqa: E402
 from test_gui import _close, _open  # noqa: E402  (one way to open and close the window in tests)
 
 # ---------------------------------------------------------------- inspection (measured points)
@@ -232,16 +233,8 @@ def test_window_text_names_standards_without_clause_numbers(qtbot):
 # ---------------------------------------------------------------- scenes of other shapes
 
 
-FASTENERS_ONLY = """
-title = "Cover screws only"
-units = "mm"
-standard = "asme"
-[[fastener]]
-id = "cover-screws"
-kind = "floating"
-fastener = 6.0
-hole = 6.6
-"""
+FASTENERS_ONLY = scene_toml(fasteners=[fastener("cover-screws", "floating", 6.0, 6.6)], title="Cover screws only",
+                            standard="asme")
 
 
 def test_fastener_only_scene_opens_and_shows_the_fastener(qtbot, tmp_path):
@@ -294,34 +287,16 @@ def test_scene_the_loader_refuses_shows_its_message_inline(qtbot, tmp_path):
     _close(win)
 
 
-INCH_SCENE = """
-title = "Fine inch fit"
-units = "in"
-standard = "{standard}"
-[[feature]]
-id = "bore"
-kind = "hole"
-limits = [0.25000, 0.25015]
-length = 0.5
-[feature.tolerance]
-characteristic = "perpendicularity"
-value = 0.0002
-material = "MMC"
-datums = ["A"]
-[[feature]]
-id = "pin"
-kind = "pin"
-limits = [0.24960, 0.24975]
-length = 0.5
-[[mate]]
-hole = "bore"
-pin = "pin"
-"""
+def _inch_scene(standard: str) -> str:
+    """A bore 0.25000 - 0.25015 in and a pin 0.24960 - 0.24975 in, mated: limits 0.00015 apart."""
+    return scene_toml(hole("bore", (0.25000, 0.25015), 0.5, tolerance=tol("perpendicularity", 0.0002)),
+                      pin("pin", (0.24960, 0.24975), 0.5), mates=[("bore", "pin")],
+                      title="Fine inch fit", units="in", standard=standard)
 
 
 def test_inch_limits_apart_by_000015_show_distinct_limits(qtbot, tmp_path):
     path = tmp_path / "fine.toml"
-    path.write_text(INCH_SCENE.format(standard="asme"))
+    path.write_text(_inch_scene("asme"))
     win = _open(qtbot, path)
     m = win.model
     m.set_focus("feature", "bore")
@@ -352,7 +327,7 @@ def test_iso_scene_says_iso_terms_in_the_what_if(qtbot, tmp_path):
     from geom.boundaries import bonus
 
     path = tmp_path / "fine_iso.toml"
-    path.write_text(INCH_SCENE.format(standard="iso"))
+    path.write_text(_inch_scene("iso"))
     win = _open(qtbot, path)
     m = win.model
     m.set_focus("feature", "bore")

@@ -15,6 +15,7 @@ from geom.model import Standard
 from geom.readout import CAUTION
 from matezone.cli import main
 from viewer.report import FASTENERS_PER_PAGE, build_page, item_states, report_items
+from scenetext import hole, pin, scene_toml, tol
 
 ROOT = Path(__file__).resolve().parent.parent
 SCENES = sorted((ROOT / "scenes").glob("*.toml"))
@@ -149,7 +150,7 @@ def test_bad_input_exits_2_with_one_message(tmp_path, argv, needle):
 
 def test_bad_scene_exits_2(tmp_path):
     bad = tmp_path / "bad.toml"
-    bad.write_text('units = "mm"\n[[feature]]\nid = "h"\nkind = "hole"\nlimits = [6, 5]\nlength = 8\n')
+    bad.write_text(scene_toml(hole("h", (6, 5), 8)))  # limits the wrong way round
     code, _, err = _run("report", str(bad), "--out", str(tmp_path / "o"))
     assert code == 2 and "limits" in err
 
@@ -221,22 +222,8 @@ def test_free_text_is_never_math_markup():
     assert t.get_parse_math() is False
 
 
-_TYPED_PIN = """title = "typed pin"
-units = "mm"
-[[feature]]
-id = "p"
-kind = "pin"
-limits = [5.98, 5.99]
-length = 8
-[feature.tolerance]
-characteristic = "perpendicularity"
-value = 0.010
-material = "MMC"
-datums = ["A"]
-[feature.measured]
-size = 5.986
-axis_deviation = 0.004
-"""
+_TYPED_PIN = scene_toml(pin("p", (5.98, 5.99), 8, tolerance=tol("perpendicularity", 0.010),
+                            measured={"size": 5.986, "axis_deviation": 0.004}), title="typed pin")
 
 
 def test_every_page_starts_and_ends_the_same_way():

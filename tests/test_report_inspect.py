@@ -22,6 +22,7 @@ from geom.scenefile import loads
 from matezone.cli import main
 from viewer.report import SECTION_ROWS, build_inspection_page, condensed_sections
 from viewer.style import ROLE_COLOUR
+from scenetext import fastener, measured_bore, scene_toml
 
 ROOT = Path(__file__).resolve().parent.parent
 CAP = ROOT / "scenes" / "cap_bore_inspection.toml"
@@ -196,7 +197,8 @@ def test_inspection_headline_is_geoms_verdict_in_its_role_colour(cap_inspection)
     # axis governs; ASME Y14.5, no modifier: tolerance allowed = t)
     sc, insp = cap_inspection
     res = analyse_scene(sc)
-    bad_scene = loads(_TYPED.format(material="RFS", axis=0.030))
+    bad_scene = loads(measured_bore("b", (8.0, 8.015), material="RFS", title="typed inspection",
+                                    measured={**_TYPED, "axis_deviation": 0.030}))
     bad = inspect_feature(bad_scene, "b")
     assert bad.verdict.role == "fail" and bad.verdict.headline.startswith("PART DOES NOT CONFORM")
     for scene_res, r in ((res, insp), (analyse_scene(bad_scene), bad)):
@@ -207,24 +209,9 @@ def test_inspection_headline_is_geoms_verdict_in_its_role_colour(cap_inspection)
         assert to_hex(heads[0].get_color()) == to_hex(ROLE_COLOUR[r.verdict.role])
 
 
-_TYPED = """title = "typed inspection"
-units = "mm"
-[[feature]]
-id = "b"
-kind = "hole"
-limits = [8.0, 8.015]
-length = 12
-[feature.tolerance]
-characteristic = "perpendicularity"
-value = 0.015
-material = "{material}"
-datums = ["A"]
-[feature.measured]
-size = 8.004
-related_size = 7.990
-axis_deviation = {axis}
-local_sizes = [8.005, 8.012]
-"""
+# invented typed values of a measured bore 8.000 - 8.015 or 8.022, perpendicularity 0.015 to A
+# (tests/scenetext.py measured_bore); each test adds its axis reading
+_TYPED = {"size": 8.004, "related_size": 7.990, "local_sizes": [8.005, 8.012]}
 
 
 def test_inspection_section_table_is_condensed(cap_pages, cap_inspection):
@@ -349,26 +336,8 @@ def test_condensed_sections_keeps_ends_and_extremes(cap_inspection):
     assert condensed_sections(secs[:5]) == [0, 1, 2, 3, 4]
 
 
-_ISO_TYPED = """title = "ISO typed inspection"
-units = "mm"
-standard = "iso"
-[[feature]]
-id = "b"
-kind = "hole"
-limits = [8.0, 8.022]
-length = 12
-envelope = true
-[feature.tolerance]
-characteristic = "perpendicularity"
-value = 0.015
-material = "MMC"
-datums = ["A"]
-[feature.measured]
-size = 8.004
-related_size = 7.990
-axis_deviation = 0.012
-local_sizes = [8.005, 8.012]
-"""
+_ISO_TYPED = measured_bore("b", (8.0, 8.022), envelope=True, title="ISO typed inspection", standard="iso",
+                           measured={**_TYPED, "axis_deviation": 0.012})
 
 
 def test_iso_inspection_page_uses_iso_terms(tmp_path):
@@ -391,22 +360,10 @@ def test_iso_inspection_page_uses_iso_terms(tmp_path):
         assert not re.search(word, page, re.IGNORECASE if word == "from memory" else 0), word
 
 
-_FASTENERS_ONLY = """title = "Cover screws"
-units = "mm"
-standard = "{std}"
-[[fastener]]
-id = "cover-screws"
-kind = "floating"
-fastener = 6.0
-hole = 6.6
-[[fastener]]
-id = "cover-studs"
-kind = "fixed"
-fastener = 6.0
-hole = 6.6
-thread_depth = 9.0
-projection = 8.0
-"""
+def _fasteners_only(std: str) -> str:
+    return scene_toml(fasteners=[fastener("cover-screws", "floating", 6.0, 6.6),
+                                 fastener("cover-studs", "fixed", 6.0, 6.6, thread_depth=9.0, projection=8.0)],
+                      title="Cover screws", standard=std)
 
 
 @pytest.mark.parametrize("std", ["asme", "iso"])
@@ -414,7 +371,7 @@ def test_fastener_only_scene_writes_the_fastener_page_and_json(tmp_path, std):
     # ASME Y14.5 fastener formulas (from memory): floating T = H - F = 6.6 - 6.0 = 0.6; fixed
     # T = (H - F) / 2 = 0.3; fixed without a projected zone, equal tolerances, from
     # H = F + T + T(1 + 2P/D): T = (H - F) / (2 + 2P/D) = 0.6 / (2 + 16/9) = 0.1588...
-    sc = loads(_FASTENERS_ONLY.format(std=std))
+    sc = loads(_fasteners_only(std))
     assert len(sc.features) == 0
     t_float, t_fixed = 6.6 - 6.0, (6.6 - 6.0) / 2
     t_unproj = (6.6 - 6.0) / (2 + 2 * 8.0 / 9.0)
@@ -424,7 +381,7 @@ def test_fastener_only_scene_writes_the_fastener_page_and_json(tmp_path, std):
     assert {q.name for q in written} >= {"report.pdf", "results.json", "fastener_cover-screws.png"}
     # and through the command, from a file
     scene = tmp_path / "fasteners.toml"
-    scene.write_text(_FASTENERS_ONLY.format(std=std), encoding="utf-8")
+    scene.write_text(_fasteners_only(std), encoding="utf-8")
     code, _, err = _run("report", scene, "--out", tmp_path / "cli")
     assert code == 0, err
     for out in (tmp_path / "direct", tmp_path / "cli"):

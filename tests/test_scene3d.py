@@ -13,6 +13,7 @@ import pytest
 import geom
 from geom.boundaries import FeatureState
 from viewer import memo
+from scenetext import fastener, hole, pin, scene_toml, tol
 from viewer import style as S
 from viewer.scene3d import (
     HIDDEN_BY_DEFAULT,
@@ -277,33 +278,9 @@ def test_auto_exaggeration(gearbox):
 
 
 def test_bowed_and_width_zones_build():
-    text = '''
-title = "t"
-units = "mm"
-[[feature]]
-id = "h"
-kind = "hole"
-limits = [10.0, 10.02]
-length = 20.0
-[feature.tolerance]
-characteristic = "straightness"
-value = 0.02
-material = "MMC"
-[[feature]]
-id = "p"
-kind = "pin"
-limits = [9.95, 9.97]
-length = 20.0
-[feature.tolerance]
-characteristic = "position"
-zone = "width"
-value = 0.01
-material = "MMC"
-datums = ["A", "B"]
-[[mate]]
-hole = "h"
-pin = "p"
-'''
+    text = scene_toml(hole("h", (10.0, 10.02), 20.0, tolerance=tol("straightness", 0.02, datums=())),
+                      pin("p", (9.95, 9.97), 20.0, tolerance=tol("position", 0.01, datums=("A", "B"), zone="width")),
+                      mates=[("h", "p")], title="t")
     res = geom.analyse_scene(geom.loads(text))
     sc3 = build_mate_scene(res, 0, exaggeration=1.0)
     axis = sc3.find("axis", "hole axis").mesh.points
@@ -500,15 +477,7 @@ def test_iso_boundaries_none_build(motor):
 
 def test_fastener_only_scene():
     """A scene of fasteners only (no feature) is valid: nothing in the 3D module assumes a feature."""
-    res = geom.analyse_scene(geom.loads('''title = "studs only"
-units = "mm"
-[[fastener]]
-id = "s"
-kind = "fixed"
-fastener = 6.0
-hole = 6.6
-thread_depth = 10.0
-projection = 8.0
-'''))
+    res = geom.analyse_scene(geom.loads(scene_toml(
+        fasteners=[fastener("s", "fixed", 6.0, 6.6, thread_depth=10.0, projection=8.0)], title="studs only")))
     assert not res.scene.features and not res.scene.mates
     assert auto_exaggeration(res) == 1.0

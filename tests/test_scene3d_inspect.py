@@ -16,6 +16,7 @@ from geom.inspect import inspect_feature
 from geom.scenefile import loads
 from viewer import memo
 from viewer import style as S
+from scenetext import measured_bore
 from viewer.scene3d import (
     LAYERS,
     N_PHI,
@@ -269,23 +270,8 @@ def test_iso_inspection_speaks_iso(scan):
 def test_not_proven_verdict_is_amber():
     """A typed inspection (no points) builds too; a value within U of its limit is 'not proven'
     (ISO 14253-1 decision rule, from memory)."""
-    text = '''units = "mm"
-[[feature]]
-id = "b"
-kind = "hole"
-limits = [8.0, 8.015]
-length = 12
-[feature.tolerance]
-characteristic = "perpendicularity"
-value = 0.015
-material = "MMC"
-datums = ["A"]
-[feature.measured]
-size = 8.004
-related_size = 7.990
-axis_deviation = 0.0185
-uncertainty = 0.001
-'''
+    text = measured_bore("b", (8.0, 8.015), measured={"size": 8.004, "related_size": 7.990,
+                                                       "axis_deviation": 0.0185, "uncertainty": 0.001})
     res = geom.analyse_scene(geom.loads(text))
     insp = inspect_feature(res.scene, "b")
     # tolerance allowed 0.015 + 0.004 = 0.019 (ASME bonus = AME - MMC, computed here); 0.0185 is within U of it
