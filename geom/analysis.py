@@ -76,6 +76,17 @@ def term(key: str, standard: Standard) -> tuple[str, str]:
 # ---------------------------------------------------------------- derived values with formulas
 
 
+class _Abbr(dict):
+    """``{key}`` in a symbolic formula -> the term's abbreviation (``lookup(key, standard)``)."""
+
+    def __init__(self, lookup, standard: Standard):
+        super().__init__()
+        self.lookup, self.standard = lookup, standard
+
+    def __missing__(self, key):
+        return self.lookup(key, self.standard)[0]
+
+
 @dataclass(frozen=True)
 class Derived:
     """A computed length with the formula that produced it.
@@ -91,8 +102,13 @@ class Derived:
     operands: tuple[float, ...] = ()
     note: str = ""  # why the value is None, or a caveat
 
+    @staticmethod
+    def term(key: str, standard: Standard) -> tuple[str, str]:
+        """The term table this value's names come from (a subclass may add its own terms)."""
+        return term(key, standard)
+
     def abbr(self, standard: Standard) -> str:
-        return term(self.key, standard)[0]
+        return self.term(self.key, standard)[0]
 
     def formula(self, units: Units, standard: Standard = Standard.ASME) -> str:
         """``VC = MMC - t = 10.000 - 0.020 = 9.980`` in the standard's terms."""
@@ -101,7 +117,7 @@ class Derived:
             return f"{name}: none ({self.note})" if self.note else f"{name}: none"
         if not self.symbolic:
             return f"{name} = {units.fmt(self.value)}"
-        sym = self.symbolic.format(**{k: term(k, standard)[0] for k in _ASME})
+        sym = self.symbolic.format_map(_Abbr(self.term, standard))
         num = self.numeric.format(*(units.fmt(v) for v in self.operands))
         if num == units.fmt(self.value):  # nothing to substitute: avoid "x = 1 = 1"
             return f"{name} = {sym} = {num}"

@@ -221,6 +221,44 @@ class Fastener:
 
 
 @dataclass(frozen=True)
+class DatumSpec:
+    """A datum of the scene's frame beyond the plane A: a plane (``feature`` None) or a feature
+    of size of the scene (its id: a pilot bore is a hole, a boss a pin), referenced at
+    ``boundary`` RMB, MMB or LMB (ISO: without or with the MMR/LMR on the datum)."""
+
+    letter: str
+    feature: str | None = None
+    boundary: str = "RMB"
+
+
+@dataclass(frozen=True)
+class PatternSpec:
+    """Several members of one feature of size (the scene feature ``feature``: its size and its
+    position tolerance, whose datums are the frame) at basic ``locations`` (x, y) in the datum
+    frame; ``requirement`` "simultaneous" or "separate" (None: the standard's default).
+    ``measured``: per member (x, y, size) as produced, from the datum feature's actual axis;
+    ``datum_sizes``: produced sizes of the datum features of size (letter, size)."""
+
+    id: str
+    feature: str
+    locations: tuple[tuple[float, float], ...]
+    requirement: str | None = None
+    measured: tuple[tuple[float, float, float], ...] = ()
+    datum_sizes: tuple[tuple[str, float], ...] = ()
+
+
+@dataclass(frozen=True)
+class InterfaceSpec:
+    """Two parts' patterns put together: ``holes`` (a pattern of holes, part 1) over ``pins``
+    (a pattern of pins, studs or threaded holes, part 2), the members paired by basic location;
+    ``fastener``: F, where fasteners pass through (floating or fixed cases)."""
+
+    holes: str
+    pins: str
+    fastener: float | None = None
+
+
+@dataclass(frozen=True)
 class Scene:
     title: str
     units: Units
@@ -229,6 +267,9 @@ class Scene:
     mates: tuple[Mate, ...] = ()
     fasteners: tuple[Fastener, ...] = ()
     report: tuple[tuple[str, str], ...] = ()  # title-block fields for exported reports
+    datums: tuple[DatumSpec, ...] = ()  # the frame beyond A (B, C), in precedence order
+    patterns: tuple[PatternSpec, ...] = ()
+    interfaces: tuple[InterfaceSpec, ...] = ()
     source: str | None = field(default=None, compare=False)  # file it was read from
 
     def feature(self, fid: str) -> Feature:
