@@ -267,10 +267,10 @@ class Scene:
     mates: tuple[Mate, ...] = ()
     fasteners: tuple[Fastener, ...] = ()
     report: tuple[tuple[str, str], ...] = ()  # title-block fields for exported reports
+    source: str | None = field(default=None, compare=False)  # file it was read from
     datums: tuple[DatumSpec, ...] = ()  # the frame beyond A (B, C), in precedence order
     patterns: tuple[PatternSpec, ...] = ()
     interfaces: tuple[InterfaceSpec, ...] = ()
-    source: str | None = field(default=None, compare=False)  # file it was read from
 
     def feature(self, fid: str) -> Feature:
         for f in self.features:
