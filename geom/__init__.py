@@ -18,7 +18,6 @@ from .analysis import (
     clearance_at,
     mate_verdict,
     required_hole_fixed,
-    result_to_json,
     term,
 )
 from .boundaries import (
@@ -48,6 +47,7 @@ from .model import (
     axis_direction,
     envelope_applies,
 )
+from .jsonout import result_to_json
 from .scenefile import SceneError, dumps, load, loads, save
 
 __all__ = [

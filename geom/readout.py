@@ -112,5 +112,9 @@ def render_text(res: SceneResult) -> str:
                        f"{fr.position_tolerance_unprojected.formula(u, st).split('= ', 1)[1]} "
                        f"(from H = F + T1 + T2(1 + 2P/D), P = {u.fmt(fa.projection)}, D = {u.fmt(fa.thread_depth)})")
         out.append("")
+    if res.frames is not None:
+        from .frames import frames_text
+
+        out += frames_text(res.frames, sc)
     out.append(CAUTION)
     return "\n".join(out) + "\n"

@@ -48,7 +48,8 @@ def _load(path: str):
 
 
 def cmd_analyze(args) -> int:
-    from geom.analysis import analyse_scene, result_to_json
+    from geom.analysis import analyse_scene
+    from geom.jsonout import result_to_json
     from geom.readout import CAUTION, render_text
 
     scene = _load(args.scene)

@@ -17,7 +17,8 @@ from typing import Callable
 import numpy as np
 from matplotlib.backends.backend_pdf import PdfPages
 
-from geom.analysis import SceneResult, result_to_json
+from geom.analysis import SceneResult
+from geom.jsonout import result_to_json
 from geom.readout import CAUTION
 from geom.textfile import file_slug
 from viewer import figures as F
