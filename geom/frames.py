@@ -168,8 +168,8 @@ def frames_text(fr: FramesResult, scene: Scene) -> list[str]:
                    f"{p.requirement} requirement")
         m0 = pr.members[0]
         out.append(f"  each at MMC: {m0.allowed.formula(u, st)}")
-        out.append("  gauge: " + ", ".join(f"pin {u.fmt(g.diameter.value)} at ({u.fmt(g.basic[0])}, {u.fmt(g.basic[1])})"
-                                           for g in pr.gauge.pins))
+        out.append("  gauge: " + ", ".join(f"{g.kind} {u.fmt(g.diameter.value)} at ({u.fmt(g.basic[0])}, "
+                                           f"{u.fmt(g.basic[1])})" for g in pr.gauge.pins))
         for s in pr.gauge.simulators:
             if s.diameter is not None:
                 out.append(f"  datum {s.letter} simulator: {s.kind} {s.diameter.formula(u, st)}")
@@ -178,7 +178,9 @@ def frames_text(fr: FramesResult, scene: Scene) -> list[str]:
                 continue
             head = ("measured, best fit within the datum shift" if chk.way == "right"
                     else "the wrong way, shift added to each hole as if bonus (not a verdict)")
-            out.append(f"  {head}: {'CONFORMS' if chk.conforms else 'DOES NOT CONFORM'}"
+            word = ("CONFORMS" if chk.conforms else "DOES NOT CONFORM") if chk.way == "right" else \
+                ("would pass" if chk.conforms else "would fail")
+            out.append(f"  {head}: {word}"
                        f" (shift used ({u.fmt(chk.shift[0])}, {u.fmt(chk.shift[1])}), rotation {chk.rotation_deg:.4f} deg)")
             for r in chk.readings:
                 mark = "  <- governs" if r.index == chk.governs else ""

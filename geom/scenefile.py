@@ -39,7 +39,7 @@ from .model import (
     datum_problem,
 )
 
-TOP_KEYS = ("title", "units", "standard", "feature", "mate", "fastener", "report")
+TOP_KEYS = ("title", "units", "standard", "feature", "mate", "fastener", "datum", "pattern", "interface", "report")
 FEATURE_KEYS = ("id", "kind", "limits", "length", "at", "name", "envelope", "tolerance", "measured")
 TOLERANCE_KEYS = ("characteristic", "zone", "value", "material", "datums", "projected", "angle")
 MEASURED_KEYS = ("size", "related_size", "axis_deviation", "axis_bottom", "axis_top", "local_sizes",
@@ -133,6 +133,10 @@ class _Ctx:
 
 
 def _join(path: str, key: str) -> str:
+    """``path.key``; a key that is not a plain name (a quoted TOML key with spaces, control or
+    bidirectional characters) is shown quoted and clipped, so a message stays one line."""
+    if not (key.isascii() and key.replace("_", "").replace("-", "").isalnum()):
+        key = clip(repr(key), 40)
     return f"{path}.{key}" if path else key
 
 
@@ -380,7 +384,12 @@ def parse(data: dict, file: str = "<scene>", source: str | None = None) -> Scene
             c.fail("report.quantity_rejected", f"expected at most report.quantity_inspected = "
                                                f"{counts['quantity_inspected']} parts, got {counts['quantity_rejected']}")
         report = tuple(items)
-    return Scene(title, units, standard, tuple(feats), tuple(mates), tuple(fasteners), report, source)
+    scene = Scene(title, units, standard, tuple(feats), tuple(mates), tuple(fasteners), report, source=source)
+    if any(k in data for k in ("datum", "pattern", "interface")):
+        from .scenefile_frames import parse_frames  # the [[datum]], [[pattern]], [[interface]] tables
+
+        scene = parse_frames(c, data, scene)
+    return scene
 
 
 def loads(text: str, file: str = "<scene>", source: str | None = None) -> Scene:
@@ -460,6 +469,10 @@ def dumps(scene: Scene) -> str:
             out.append(f"thread_depth = {_v(fa.thread_depth)}")
         if fa.projection is not None:
             out.append(f"projection = {_v(fa.projection)}")
+    if scene.datums or scene.patterns or scene.interfaces:
+        from .scenefile_frames import dump_frames
+
+        out += dump_frames(scene)
     if scene.report:
         out += ["", "[report]"] + [f"{k} = {v if k in COUNT_KEYS and v.isdigit() else _v(v)}"
                                    for k, v in scene.report]

@@ -22,11 +22,13 @@ from geom.jsonout import result_to_json
 from geom.readout import CAUTION
 from geom.textfile import file_slug
 from viewer import figures as F
+from viewer.figures.pattern import pattern_figure
 
 from .fastener import FASTENERS_PER_PAGE, build_fastener_page, fastener_figure
 from .fit import VIEW_FILES, build_page, image_slot_3d, item_states, printed_height, report_items
 from .inspection import build_inspection_page, inspection_image_slot
 from .page import PAGE_3D_ASPECT, crop_to_content
+from .pattern import build_pattern_page
 from .readings import scene_inspections
 
 VECTOR_FORMATS = ("svg", "pdf")
@@ -174,7 +176,8 @@ def write_report(res: SceneResult, out_dir, sizes: dict[str, float] | None = Non
     fids = list(res.fasteners)
     fastener_pages = [fids[i:i + FASTENERS_PER_PAGE] for i in range(0, len(fids), FASTENERS_PER_PAGE)]
     sweeps = [(item, fmt) for item in items for fmt in animate if _sweepable(res, item)]
-    steps = len(items) * (1 + len(VIEW_FILES)) + len(inspections) + len(fids) + 2 + len(sweeps)
+    pids = [pr.pattern.id for pr in res.frames.patterns] if res.frames is not None else []
+    steps = len(items) * (1 + len(VIEW_FILES)) + len(inspections) + len(fids) + 2 + len(sweeps) + len(pids)
     n = 0
     written: list[Path] = []
 
@@ -237,9 +240,18 @@ def write_report(res: SceneResult, out_dir, sizes: dict[str, float] | None = Non
         written += paths
         fastener_files[fid] = paths[0].name
         say(f"fastener {fid}: schematic", paths)
+    pattern_files = {}
+    for pid in pids:
+        fig = pattern_figure(res, pid)
+        paths = [out / f"pattern_{file_slug(pid)}.{ext}" for ext in ("png", *VECTOR_FORMATS)]
+        for q in paths:
+            F.save_figure(fig, q)
+        written += paths
+        pattern_files[pid] = paths[0].name
+        say(f"pattern {pid}: top view", paths)
     pdf = out / "report.pdf"
     rep = dict(res.scene.report)
-    pages = len(inspections) + len(items) + len(fastener_pages)
+    pages = len(inspections) + len(items) + len(pids) + len(fastener_pages)
     with F.style_context():
         with PdfPages(pdf, metadata={"Title": f"Fit evidence: {res.scene.title}",
                                      "Subject": rep.get("report_number", ""),
@@ -249,6 +261,9 @@ def write_report(res: SceneResult, out_dir, sizes: dict[str, float] | None = Non
                 page += 1
                 imgs, caption, legend, names = insp_pages[fid]
                 pp.savefig(build_inspection_page(res, insp, imgs, page, pages, caption, legend, names))
+            for pid in pids:  # a pattern is the interface's subject: before its members' own pages
+                page += 1
+                pp.savefig(build_pattern_page(res, pid, page, pages, pattern_files[pid]))
             for item in items:
                 page += 1
                 fig = build_page(res, item, page_states[item.file_key], images3d[item.file_key], page, pages, view,

@@ -1,0 +1,75 @@
+"""The pattern's picture and report page on the invented pump cover scene.
+
+Check values are computed here from the scene's limits and tolerances: the gauge pin is the hole's
+VC, MMC - t (ASME Y14.5 functional gauging, common practice); zones are drawn k times their
+diameter t + bonus about each basic location; a right-way reading of a hole pushed out radially
+by e is 2e whatever the shift (a translation cannot bring opposite holes in together: geometry,
+no source).
+"""
+
+from __future__ import annotations
+
+import math
+from pathlib import Path
+
+import pytest
+from matplotlib.patches import Circle
+
+from geom import analyse_scene, load
+from viewer.figures.pattern import draw_pattern, exaggeration_for, pattern_figure, pattern_result
+
+SCENE = Path(__file__).resolve().parents[1] / "scenes" / "pump_cover_bolts.toml"
+
+
+@pytest.fixture(scope="module")
+def res():
+    return analyse_scene(load(SCENE))
+
+
+def test_the_demo_cover_fails_the_right_way_and_passes_the_wrong_way(res):
+    pr = pattern_result(res, "cover-bolts")
+    e = math.hypot(25.5160, 25.5160) - 36.0  # each hole's radial error as measured (scene file)
+    assert [r.position for r in pr.right.readings] == pytest.approx([2 * e] * 4, abs=2e-4)
+    assert not pr.right.conforms
+    # the wrong way: each allowed 0.150 + the shift 52.020 - 51.980 = 0.040
+    assert [r.allowed for r in pr.wrong.readings] == pytest.approx([0.150 + 0.040] * 4)
+    assert pr.wrong.conforms
+
+
+def test_the_picture_draws_each_zone_k_times_and_the_gauge_true(res):
+    from matplotlib.figure import Figure
+
+    pr = pattern_result(res, "cover-bolts")
+    fig = Figure()
+    ax = fig.add_subplot()
+    k, _handles = draw_pattern(ax, res, "cover-bolts", "right")
+    assert k == exaggeration_for(pr)
+    circles = [c for c in ax.patches if isinstance(c, Circle)]
+    zones = [c for c in circles if c.get_fill() and abs(c.radius - k * 0.150 / 2) < 1e-9]
+    assert len(zones) == 4  # one per member, diameter k x (t + bonus at 9.000 = MMC)
+    pins = [c for c in circles if abs(c.radius - (9.000 - 0.150) / 2) < 1e-9]
+    assert len(pins) == 4  # gauge pins at the VC, true size
+    assert {(round(c.center[0], 6), round(c.center[1], 6)) for c in pins} == {
+        (round(36 * math.cos(math.radians(a)), 6), round(36 * math.sin(math.radians(a)), 6)) for a in (45, 135, 225, 315)}
+    sim = [c for c in circles if abs(c.radius - (52.000 - 0.020) / 2) < 1e-9]
+    assert len(sim) == 1  # datum B's simulator at its MMB
+
+
+def test_the_report_puts_the_pattern_page_first(tmp_path, res):
+    import subprocess
+
+    from viewer.report.writer import write_report
+
+    paths = write_report(res, tmp_path)
+    names = {p.name for p in paths}
+    assert {"pattern_cover-bolts.png", "pattern_cover-bolts.svg", "pattern_housing-studs.png"} <= names
+    txt = subprocess.run(["pdftotext", "-f", "1", "-l", "1", str(tmp_path / "report.pdf"), "-"],
+                         capture_output=True, text=True, check=True).stdout
+    assert "PATTERN IN ITS DATUM FRAME" in txt and "DOES NOT CONFORM" in txt
+    assert "not a verdict" in txt and "DISPOSITION" in txt
+    assert "do not replace" in txt.replace("\n", " ")  # the caution on every page
+
+
+def test_a_pattern_without_measured_members_has_one_panel(res):
+    fig = pattern_figure(res, "housing-studs")
+    assert len(fig.axes) == 1

@@ -1,0 +1,141 @@
+"""The top view of a pattern in its datum frame: the datum feature's simulator at its MMB, each
+member at its basic location with its gauge pin (the VC, true size) and its tolerance zone; the
+zones, the measured axes and the shift envelope are small against the pattern, so they are drawn
+``k`` times their size about the basic locations (one factor per picture, said in the caption;
+sizes and locations of the gauge true).
+
+Where the scene gives measured members: one panel the right way (the pattern moved as one body
+within the shift envelope, each member against its own zone) and one the wrong way (the shift
+added to every zone, nothing moved), so a trainee sees the difference.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from matplotlib.figure import Figure
+from matplotlib.patches import Circle
+
+from geom.analysis import SceneResult
+from geom.model import Kind
+from viewer import style as S
+
+from .aids import DPI, FIGSIZE, style_context
+
+
+def pattern_result(res: SceneResult, pid: str):
+    """The :class:`geom.frames.PatternResult` of pattern ``pid``."""
+    for pr in res.frames.patterns if res.frames is not None else ():
+        if pr.pattern.id == pid:
+            return pr
+    raise KeyError(pid)
+
+
+def exaggeration_for(pr) -> float:
+    """The factor zones and deviations are drawn at: a zone drawn as a quarter of the smallest
+    distance between two members (or from a member to the datum axis), a 1-2-5 number."""
+    from viewer.exaggeration import nice_floor
+
+    locs = np.asarray(pr.pattern.locations, float)
+    gaps = [float(np.hypot(*locs[i])) for i in range(len(locs))]
+    gaps += [float(np.hypot(*(locs[i] - locs[j]))) for i in range(len(locs)) for j in range(i)]
+    room = 0.25 * min(g for g in gaps if g > 0) if any(g > 0 for g in gaps) else 1.0
+    zone = max(m.allowed.value for m in pr.members)
+    checks = [c for c in (pr.right, pr.wrong) if c is not None]
+    zone = max([zone] + [r.allowed for c in checks for r in c.readings])
+    return max(1.0, nice_floor(room / max(zone, 1e-12)))
+
+
+def draw_pattern(ax, res: SceneResult, pid: str, way: str = "right", k: float | None = None, fs: float = 8.0):
+    """Draw pattern ``pid`` on ``ax``: ``way`` "right" (the measured fit within the shift) or
+    "wrong" (the shift as bonus); without measured members, the pattern at MMC and its gauge.
+    Returns the factor ``k`` the zones are drawn at."""
+    pr = pattern_result(res, pid)
+    u = res.scene.units
+    p = pr.pattern
+    k = k or exaggeration_for(pr)
+    chk = pr.right if way == "right" else pr.wrong
+    hole = p.feature.kind is Kind.HOLE
+    handles = []
+    # the datum feature's simulator (true size) and the frame's axes
+    sims = [s for s in pr.gauge.simulators if s.diameter is not None]
+    for s in sims:
+        c = Circle((0, 0), s.diameter.value / 2, fill=False, lw=1.0, ls="-", ec=S.PART)
+        ax.add_patch(c)
+        handles.append((c, f"datum {s.letter} simulator ⌀{u.fmt(s.diameter.value)} (at its MMB)"))
+    reach = max(float(np.hypot(*xy)) for xy in p.locations)
+    ax.plot([-1.2 * reach, 1.2 * reach], [0, 0], color=S.PART, lw=0.5, ls="-.")
+    ax.plot([0, 0], [-1.2 * reach, 1.2 * reach], color=S.PART, lw=0.5, ls="-.")
+    for g in pr.gauge.pins:  # the gauge pins, true size
+        c = Circle(g.basic, g.diameter.value / 2, fill=False, lw=0.9, ls="--", ec=S.VC)
+        ax.add_patch(c)
+    handles.append((Circle((0, 0), 1, fill=False, ls="--", ec=S.VC),
+                    f"gauge {'pins' if hole else 'holes'} ⌀{u.fmt(pr.gauge.pins[0].diameter.value)} (VC), true size"))
+    readings = chk.readings if chk is not None else None
+    for i, (bx, by) in enumerate(p.locations):
+        allowed = readings[i].allowed if readings else pr.members[i].allowed.value
+        z = Circle((bx, by), k * allowed / 2, fill=True, alpha=0.35, fc=S.ZONE, ec=S.ZONE, lw=0.8)
+        ax.add_patch(z)
+        if readings:
+            r = readings[i]
+            mx, my = bx + k * (r.measured[0] - bx), by + k * (r.measured[1] - by)
+            fx, fy = bx + k * (r.fitted[0] - bx), by + k * (r.fitted[1] - by)
+            col = S.ROLE_COLOUR["ok" if r.margin >= -1e-12 else "fail"]
+            ax.plot([mx], [my], marker="o", ms=3, color=S.NEUTRAL, zorder=5)
+            if math.hypot(fx - mx, fy - my) > 1e-9:
+                ax.annotate("", (fx, fy), (mx, my), arrowprops={"arrowstyle": "->", "color": S.TEXT, "lw": 0.7})
+            ax.plot([fx], [fy], marker="o", ms=4.5, color=col, zorder=6)
+            ax.text(bx, by - k * allowed / 2 - 0.02 * reach, f"{i + 1}: {u.fmt(r.position)} / {u.fmt(r.allowed)}",
+                    ha="center", va="top", fontsize=fs * 0.85, color=col)
+        else:
+            ax.text(bx, by - k * allowed / 2 - 0.02 * reach, f"{i + 1}", ha="center", va="top", fontsize=fs * 0.85)
+    handles.append((Circle((0, 0), 1, fc=S.ZONE, alpha=0.35, ec=S.ZONE),
+                    f"zone at each basic location, x{k:g}" + (" (t + bonus + shift)" if way == "wrong" and chk else
+                                                               " (t + bonus)")))
+    if chk is not None and way == "right" and chk.datum is not None:
+        rad = chk.datum.radial.value
+        env = Circle((0, 0), k * rad, fill=False, ec=S.TEXT, lw=0.9, ls=":")
+        ax.add_patch(env)
+        handles.append((env, f"shift envelope: radial {u.fmt(rad)}, x{k:g}"))
+        if math.hypot(*chk.shift) > 0:
+            ax.annotate("", (k * chk.shift[0], k * chk.shift[1]), (0, 0),
+                        arrowprops={"arrowstyle": "->", "color": S.TEXT, "lw": 1.0})
+    ax.set_aspect("equal")
+    lim = 1.25 * reach
+    ax.set_xlim(-lim, lim)
+    ax.set_ylim(-lim, lim)
+    ax.tick_params(labelsize=fs * 0.8)
+    if chk is None:
+        title = f"pattern '{p.id}' at MMC with its gauge"
+    elif way == "right":
+        title = (f"right way: the pattern moves as one body within the shift\n"
+                 f"{'CONFORMS' if chk.conforms else 'DOES NOT CONFORM'}")
+    else:
+        title = (f"wrong way (not a verdict): shift {u.fmt(chk.added)} added to each zone\n"
+                 f"{'would pass' if chk.conforms else 'would fail'}")
+    ax.set_title(title, fontsize=fs, loc="left", pad=3)
+    return k, handles
+
+
+def pattern_figure(res: SceneResult, pid: str, figsize=FIGSIZE, fs: float = 8.0) -> Figure:
+    """The pattern's picture alone: one panel (no measured members) or right and wrong way."""
+    pr = pattern_result(res, pid)
+    ways = ("right", "wrong") if pr.right is not None else ("right",)
+    with style_context():
+        fig = Figure(figsize=figsize, dpi=DPI, facecolor=S.BACKGROUND)
+        k = exaggeration_for(pr)
+        w = 0.86 / len(ways)
+        handles = None
+        for i, way in enumerate(ways):
+            ax = fig.add_axes((0.06 + i * (w + 0.02), 0.22, w - 0.02, 0.68))
+            _k, h = draw_pattern(ax, res, pid, way, k, fs)
+            handles = handles or h
+        fig.text(0.03, 0.97, f"Pattern '{pid}' in its datum frame ({'|'.join(pr.pattern.frame.letters)}), top view",
+                 fontsize=fs * 1.3, weight="bold", va="top", gid="title")
+        fig.text(0.03, 0.03, f"zones, measured axes and the shift drawn x{k:g} about the basic locations; "
+                 f"gauge, simulator and locations true ({res.scene.units.value})",
+                 fontsize=fs * 0.85, va="bottom", gid="footer")
+        fig.legend([h for h, _ in handles], [t for _, t in handles], loc="lower right", fontsize=fs * 0.8,
+                   bbox_to_anchor=(0.99, 0.06), frameon=True, ncol=2)
+    return fig
