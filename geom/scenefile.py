@@ -135,7 +135,7 @@ class _Ctx:
 def _join(path: str, key: str) -> str:
     """``path.key``; a key that is not a plain name (a quoted TOML key with spaces, control or
     bidirectional characters) is shown quoted and clipped, so a message stays one line."""
-    if not (key.isascii() and key.replace("_", "").replace("-", "").isalnum()):
+    if any(not (ch.isascii() and ch.isprintable()) or ch.isspace() or ch in "'\"" for ch in key):
         key = clip(repr(key), 40)
     return f"{path}.{key}" if path else key
 

@@ -132,3 +132,26 @@ def test_a_scene_without_frames_keeps_its_json_unchanged():
         Feature("p", Kind.PIN, (7.97, 7.98), 10.0, tolerance=_perp(0.005))), mates=(Mate("h", "p"),))
     js = result_to_json(analyse_scene(plain))
     assert set(js) == {"title", "units", "standard", "features", "mates", "fasteners"}
+
+
+def test_the_window_logic_lists_focuses_and_removes_a_pattern():
+    from geom.scenefile import dumps, loads
+    from viewer.windowlogic.editing import contents_entries, removal
+    from viewer.windowlogic.focus import default_focus, focus_valid
+
+    sc = loads(dumps(_scene()))  # through the file, as the window holds it
+    assert default_focus(sc) == ("pattern", "cover-bolts")  # no mate: the first pattern
+    entries = [e.focus for e in contents_entries(sc)]
+    assert ("pattern", "cover-bolts") in entries and ("pattern", "housing-pins") in entries
+    assert focus_valid(sc, ("pattern", "housing-pins")) and not focus_valid(sc, ("pattern", "nope"))
+    import tomllib
+
+    d = tomllib.loads(dumps(sc))
+    mutate, what = removal(sc, "pattern", "housing-pins")
+    mutate(d)
+    assert what == "remove pattern housing-pins"
+    assert [p["id"] for p in d["pattern"]] == ["cover-bolts"] and d["interface"] == []  # its interface too
+    # removing a member feature takes its pattern along, so the scene still loads
+    d = tomllib.loads(dumps(sc))
+    removal(sc, "feature", "housing-pin")[0](d)
+    assert [p["id"] for p in d["pattern"]] == ["cover-bolts"] and d["interface"] == []

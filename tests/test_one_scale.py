@@ -123,8 +123,8 @@ def test_one_factor_and_one_sentence_in_every_view_at_every_state(name, subject)
         # local gap: never the same words twice
         gaps = [lb.text for lb in sc3.labels if lb.layer == "clearance"]
         assert len(gaps) == len(set(gaps)) <= 2
-        assert all(t.startswith(("local gap at this tilt direction ", "local interference at this tilt direction "))
-                   for t in gaps)
+        assert all(t.startswith(("local gap at this tilt direction\n", "local interference at this tilt direction\n"))
+                   for t in gaps)  # the name on one row, the value on the next
     assert len(r_disp) == 1  # the section's drawn radius does not move with the state either
 
 

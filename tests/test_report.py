@@ -163,10 +163,10 @@ def test_every_demo_scene_produces_its_report(scene, demo_report):
     fit_pages = len(sc.mates) + len([f for f in sc.features if f.id not in mated])
     measured = [f for f in sc.features if f.measured is not None]
     fastener_pages = -(-len(sc.fasteners) // FASTENERS_PER_PAGE)
-    assert len(pages) == len(measured) + fit_pages + fastener_pages
+    assert len(pages) == len(measured) + fit_pages + len(sc.patterns) + fastener_pages  # a page per pattern
     assert len(list(out.glob("*_3d_iso.png"))) == fit_pages + len(measured)
     assert len(list(out.glob("inspection_*_3d_section.png"))) == len(measured)
-    assert len(list(out.glob("*.svg"))) == 3 * fit_pages + len(sc.fasteners)
+    assert len(list(out.glob("*.svg"))) == 3 * fit_pages + len(sc.fasteners) + len(sc.patterns)
     data = json.loads((out / "results.json").read_text(encoding="utf-8"))
     assert sorted(data["inspections"]) == sorted(f.id for f in measured)
     raw = "\n".join(pages)
@@ -181,7 +181,8 @@ def test_every_demo_scene_produces_its_report(scene, demo_report):
         for word in (r"\bbonus\b", r"\bVC\b", r"\bAME\b", r"actual mating", r"Rule #1", r"\bRFS\b", r"\bMMC\b"):
             assert not re.search(word, raw), word
     # a report that judges measured parts titles its fit pages as design intent
-    fit = pages[len(measured):len(measured) + fit_pages]
+    first = len(measured) + len(sc.patterns)  # inspections, then patterns, then the fit pages
+    fit = pages[first:first + fit_pages]
     for page in fit:
         if measured:
             assert "DESIGN INTENT" in page and "FIT EVIDENCE" not in page

@@ -133,6 +133,10 @@ class SceneModel(QObject):
         """The fastener looked at, or None."""
         return focus.keyed(self.focus, "fastener")
 
+    def focus_pattern(self) -> str | None:
+        """The pattern looked at, or None."""
+        return focus.keyed(self.focus, "pattern")
+
     def focus_inspection(self) -> str | None:
         """The feature whose inspection is looked at, or None."""
         return focus.keyed(self.focus, "inspection")

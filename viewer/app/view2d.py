@@ -123,12 +123,13 @@ class Views2D(QTabWidget):
         """A fastener has one 2D picture (its section schematic), shown in the first tab; the
         other tabs are for holes and pins."""
         fast = self.model.focus_fastener() is not None
+        pat = self.model.focus_pattern() is not None
         for i, (_key, title) in enumerate(self.TABS):
-            text = "Fastener section" if fast and i == 0 else title
+            text = "Fastener section" if fast and i == 0 else "Pattern (top view)" if pat and i == 0 else title
             if self.tabText(i) != text:
                 self.setTabText(i, text)
-            self.setTabEnabled(i, not fast or i == 0)
-        if fast and self.currentIndex() != 0:
+            self.setTabEnabled(i, not (fast or pat) or i == 0)
+        if (fast or pat) and self.currentIndex() != 0:
             self.setCurrentIndex(0)
 
     TABS = (("through", "Through-view"), ("section", "Section"), ("bonus", "Bonus chart"))  # figures.VIEWS_2D
@@ -159,10 +160,13 @@ class Views2D(QTabWidget):
 
     def subject(self):
         """What the 2D views show: the mate in focus (or of the focused feature), else the feature;
-        for a fastener its id as ("fastener", id)."""
+        for a fastener or a pattern ("fastener", id) or ("pattern", id)."""
         fast = self.model.focus_fastener()
         if fast is not None:
             return ("fastener", fast)
+        pat = self.model.focus_pattern()
+        if pat is not None:
+            return ("pattern", pat)
         mi = self.model.focus_mate()
         kind, key = self.model.focus
         if kind == "feature" and (mi is None or self.model.scene.feature(key).tolerance is None):
@@ -178,6 +182,15 @@ class Views2D(QTabWidget):
         m = self.model
         sub = self.subject()
         with matplotlib.rc_context({"text.parse_math": False}):
+            c = self.canvases[key]
+            w, h = max(c.width(), 200), max(c.height(), 150)
+            page = pane_figsize(w, h, font_scale())  # drawn for the pane, text at the desktop's size
+            if isinstance(sub, tuple) and sub[0] == "pattern":  # its top view (the report's), right and wrong way
+                from viewer.figures.pattern import pattern_figure
+
+                fig = pattern_figure(m.result, sub[1], figsize=page)
+                fig._matezone_page = page
+                return fig
             if isinstance(sub, tuple):  # a fastener: its section schematic (the report's), in every tab
                 from viewer.report import fastener_figure
 
@@ -186,9 +199,6 @@ class Views2D(QTabWidget):
             insp = m.shown_inspection()
             if insp is not None and key in MARKS_MEASURED:  # the measured part, not the nominal one
                 kw["measured"] = insp
-            c = self.canvases[key]
-            w, h = max(c.width(), 200), max(c.height(), 150)
-            page = pane_figsize(w, h, font_scale())  # drawn for the pane, text at the desktop's size
             fig, _data = self.figures_mod.draw_view(key, m.result, sub, dict(m.states), figsize=page, **kw)
             fig._matezone_page = page
             return fig

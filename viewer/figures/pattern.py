@@ -109,11 +109,10 @@ def draw_pattern(ax, res: SceneResult, pid: str, way: str = "right", k: float | 
     if chk is None:
         title = f"pattern '{p.id}' at MMC with its gauge"
     elif way == "right":
-        title = (f"right way: the pattern moves as one body within the shift\n"
-                 f"{'CONFORMS' if chk.conforms else 'DOES NOT CONFORM'}")
+        title = f"right way: moved as one body\n{'CONFORMS' if chk.conforms else 'DOES NOT CONFORM'}"
     else:
-        title = (f"wrong way (not a verdict): shift {u.fmt(chk.added)} added to each zone\n"
-                 f"{'would pass' if chk.conforms else 'would fail'}")
+        title = (f"wrong way: +{u.fmt(chk.added)} on each zone\n"
+                 f"{'would pass' if chk.conforms else 'would fail'} (not a verdict)")
     ax.set_title(title, fontsize=fs, loc="left", pad=3)
     return k, handles
 
@@ -133,7 +132,7 @@ def pattern_figure(res: SceneResult, pid: str, figsize=FIGSIZE, fs: float = 8.0)
             handles = handles or h
         fig.text(0.03, 0.97, f"Pattern '{pid}' in its datum frame ({'|'.join(pr.pattern.frame.letters)}), top view",
                  fontsize=fs * 1.3, weight="bold", va="top", gid="title")
-        fig.text(0.03, 0.03, f"zones, measured axes and the shift drawn x{k:g} about the basic locations; "
+        fig.text(0.03, 0.03, f"zones, measured axes and the shift drawn x{k:g} about the basic locations;\n"
                  f"gauge, simulator and locations true ({res.scene.units.value})",
                  fontsize=fs * 0.85, va="bottom", gid="footer")
         fig.legend([h for h, _ in handles], [t for _, t in handles], loc="lower right", fontsize=fs * 0.8,

@@ -80,12 +80,46 @@ def inspection_banner(fid: str, res, units) -> Banner:
     return Banner(v.role, v.role, v.headline, "<br>".join(lines), tip=res.axis_governs or "")
 
 
+def pattern_banner(res, scene, pid: str) -> Banner:
+    """A pattern: the measured pattern's verdict (the best fit within the datum shift), the wrong
+    way beside it where it would differ, else its gauge; the interfaces it is in."""
+    from viewer.figures.pattern import pattern_result
+
+    u, st = scene.units, scene.standard
+    pr = pattern_result(res, pid)
+    p = pr.pattern
+    lines = [f"{p.count} × {p.feature.id} to {'|'.join(p.frame.letters)}, {p.requirement} requirement; gauge "
+             f"{pr.gauge.pins[0].kind}s ⌀{u.fmt(pr.gauge.pins[0].diameter.value)} (VC) at the basic locations"]
+    if pr.right is not None:
+        c = pr.right
+        g = c.readings[c.governs]
+        role = "ok" if c.conforms else "fail"
+        head = (f"PATTERN {pid} {'CONFORMS' if c.conforms else 'DOES NOT CONFORM'}: member {c.governs + 1} "
+                f"⌀{u.fmt_cmp(g.position, g.allowed)[0]} {'<=' if c.conforms else '>'} ⌀{u.fmt_cmp(g.position, g.allowed)[1]}"
+                " after the best fit within the datum shift")
+        if pr.wrong.conforms != c.conforms:
+            lines.append("Adding the datum shift to each member's tolerance (the wrong way) would "
+                         f"{'accept' if pr.wrong.conforms else 'reject'} it: the shift moves the pattern as one body.")
+    else:
+        role, head = "none", f"PATTERN {pid}: no measured members; its gauge and interfaces below"
+    for it in res.frames.interfaces:
+        if pid in (it.holes, it.pins):
+            m = it.mate
+            tight = m.pairs[m.tightest]
+            lines.append(f"interface {it.holes} / {it.pins}: {'assembles' if m.assembles else 'DOES NOT ASSEMBLE'} "
+                         f"in the worst case; tightest pair {tight.index + 1}: {tight.clearance_min.formula(u, st)}")
+    return Banner(role, role, head, "<br>".join(lines), mark=role != "none")
+
+
 def banner(res, scene, states, focus_inspection: str | None, inspection, fastener: str | None,
-           mate: int | None) -> Banner:
+           mate: int | None, pattern: str | None = None) -> Banner:
     """The banner for the focus: an inspection (of feature ``focus_inspection``, its result
-    ``inspection``), else a fastener, else the mate ``mate`` (None: no mate to judge)."""
+    ``inspection``), else a fastener, else a pattern, else the mate ``mate`` (None: no mate to
+    judge)."""
     if focus_inspection is not None:
         return inspection_banner(focus_inspection, inspection, scene.units)
     if fastener is not None:
         return fastener_banner(res, scene, fastener)
+    if pattern is not None:
+        return pattern_banner(res, scene, pattern)
     return mate_banner(res, scene, mate, states)

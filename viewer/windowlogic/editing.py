@@ -86,8 +86,11 @@ class Entry:
 
 
 def contents_entries(scene: Scene) -> list[Entry]:
-    """The mates, features, inspections and fasteners of the scene, in that order."""
+    """The mates, patterns, features, inspections and fasteners of the scene, in that order."""
     out = [Entry(f"mate {i + 1}: {m.hole} ← {m.pin}", ("mate", i)) for i, m in enumerate(scene.mates)]
+    out += [Entry(f"pattern {p.id} ({len(p.locations)} × {p.feature})", ("pattern", p.id),
+                  f"The pattern {p.id} in its datum frame: gauge, measured fit, interfaces (edit it in the scene file)")
+            for p in scene.patterns]
     out += [Entry(f"{f.kind.value} {f.id}" + (f" – {f.name}" if f.name else ""), ("feature", f.id))
             for f in scene.features]
     for f in scene.features:
@@ -129,8 +132,8 @@ def new_mate(scene: Scene) -> dict | None:
 
 def removal(scene: Scene, kind: str, key):
     """(change of the scene dict, undo text) that removes what the focus ``(kind, key)`` names:
-    an inspection's measured data, a mate, a fastener, or a feature with its mates. None for
-    anything else."""
+    an inspection's measured data, a mate, a fastener, a pattern with its interfaces, or a
+    feature with its mates and patterns. None for anything else."""
     if kind == "inspection":
         i = feature_index(scene, key)
         return (lambda d: d["feature"][i].pop("measured", None)), f"remove the measured data of {key}"
@@ -139,11 +142,21 @@ def removal(scene: Scene, kind: str, key):
     if kind == "fastener":
         return (lambda d: d.__setitem__("fastener", [x for x in d.get("fastener", []) if x["id"] != key]),
                 f"remove fastener {key}")
+    if kind == "pattern":
+        def drop(d):
+            d["pattern"] = [x for x in d.get("pattern", []) if x["id"] != key]
+            d["interface"] = [x for x in d.get("interface", []) if key not in (x["holes"], x["pins"])]
+
+        return drop, f"remove pattern {key}"
     if kind != "feature":
         return None
 
     def mutate(d):
         d["feature"] = [f for f in d.get("feature", []) if f["id"] != key]
         d["mate"] = [m for m in d.get("mate", []) if key not in (m["hole"], m["pin"])]
+        gone = {p["id"] for p in d.get("pattern", []) if p.get("feature") == key}  # its patterns go with it
+        if gone:
+            d["pattern"] = [p for p in d["pattern"] if p["id"] not in gone]
+            d["interface"] = [x for x in d.get("interface", []) if not gone & {x["holes"], x["pins"]}]
 
     return mutate, f"remove {key}"

@@ -1,19 +1,21 @@
 """What the window looks at, its focus: ``(kind, key)`` with kind one of "mate" (key: the mate's
-index), "feature" or "inspection" (key: the feature id), "fastener" (key: its id), or
+index), "feature" or "inspection" (key: the feature id), "fastener" or "pattern" (key: its id), or
 ``("none", None)`` for an empty scene. Every panel follows the one focus the model holds."""
 
 from __future__ import annotations
 
 from geom.model import Scene
 
-KINDS = ("mate", "feature", "inspection", "fastener")
+KINDS = ("mate", "feature", "inspection", "fastener", "pattern")
 
 
 def default_focus(scene: Scene) -> tuple[str, object]:
-    """The first mate, else the first feature, else the first fastener (a scene may hold
-    fastener tables only)."""
+    """The first mate, else the first pattern, else the first feature, else the first fastener
+    (a scene may hold fastener tables only)."""
     if scene.mates:
         return ("mate", 0)
+    if scene.patterns:
+        return ("pattern", scene.patterns[0].id)
     if scene.features:
         return ("feature", scene.features[0].id)
     if scene.fasteners:
@@ -30,6 +32,8 @@ def focus_valid(scene: Scene, focus: tuple[str, object]) -> bool:
         return key in {f.id for f in scene.features}
     if kind == "fastener":
         return key in {fa.id for fa in scene.fasteners}
+    if kind == "pattern":
+        return key in {p.id for p in scene.patterns}
     return False
 
 

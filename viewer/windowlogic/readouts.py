@@ -111,12 +111,48 @@ def fastener_lines(t: Table, res: SceneResult, units, standard, only: str | None
                    fr.position_tolerance_unprojected.formula(u, st)))
 
 
+def pattern_lines(t: Table, res: SceneResult, units, standard, pid: str) -> None:
+    """A pattern's datums, members (measured: the right-way reading and the wrong way's allowed;
+    else the zone at MMC) and gauge, and the pairs of its interfaces."""
+    from viewer.figures.pattern import pattern_result
+
+    u, st = units, standard
+    pr = pattern_result(res, pid)
+    t.add((f"pattern {pid}", "", f"{pr.pattern.count} × {pr.pattern.feature.id} to "
+           f"{'|'.join(pr.pattern.frame.letters)}, {pr.pattern.requirement} requirement"), bold=True, bg=FIXED_HEAD)
+    for d in res.frames.datums:
+        if d.letter in pr.pattern.frame.letters:
+            t.add((f"datum {d.letter} boundary ({d.boundary})", u.fmt(d.mmb.value), d.mmb.formula(u, st)))
+            if d.shift_max is not None:
+                t.add((f"datum {d.letter}: most shift", u.fmt(d.shift_max.diametral.value),
+                       d.shift_max.diametral.formula(u, st) + " (moves the pattern as one body)"))
+    for m, g in zip(pr.members, pr.gauge.pins):
+        where = f"({u.fmt(m.basic[0])}, {u.fmt(m.basic[1])})"
+        t.add((f"member {m.index + 1} at {where}: gauge {g.kind}", u.fmt(g.diameter.value), g.diameter.formula(u, st)))
+    if pr.right is not None:
+        for r, w in zip(pr.right.readings, pr.wrong.readings):
+            t.add((f"member {r.index + 1}: position after the best fit", u.fmt(r.position),
+                   f"allowed {u.fmt(r.allowed)}, margin {u.fmt(r.margin, signed=True)}; shift as bonus "
+                   f"(the wrong way) would allow {u.fmt(w.allowed)}"))
+    for it in res.frames.interfaces:
+        if pid in (it.holes, it.pins):
+            for pc in it.mate.pairs:
+                t.add((f"{it.holes} / {it.pins} pair {pc.index + 1}", u.fmt(pc.clearance_min.value),
+                       pc.clearance_min.formula(u, st)))
+            if it.mate.pilot is not None:
+                t.add((f"{it.holes} / {it.pins} pilots", u.fmt(it.mate.pilot.value), it.mate.pilot.formula(u, st)))
+
+
 def focus_table(res: SceneResult, scene, states, features, mate: int | None, fastener: str | None,
-                ui: Callable[[str], str] = _same, fixed=fixed_rows) -> Table:
-    """The lines for a mate, feature or fastener focus: ``features`` at their ``states``, the
-    mate ``mate``'s worst case, then the fastener ``fastener`` (every fastener when None)."""
+                ui: Callable[[str], str] = _same, fixed=fixed_rows, pattern: str | None = None) -> Table:
+    """The lines for a mate, feature, fastener or pattern focus: ``features`` at their
+    ``states``, the mate ``mate``'s worst case, then the fastener ``fastener`` (every fastener
+    when None and no pattern is looked at), or the pattern ``pattern``."""
     u, st = scene.units, scene.standard
     t = Table(ui)
+    if pattern is not None:
+        pattern_lines(t, res, u, st, pattern)
+        return t
     for fid in features:
         feature_lines(t, res, fid, states[fid], u, st, fixed)
     if mate is not None:

@@ -107,7 +107,7 @@ class ReadoutTable(QTableWidget):
             return
         self.setWordWrap(False)
         t = focus_table(m.result, m.scene, m.states, m.focus_features(), m.focus_mate(), m.focus_fastener(),
-                        ui_text, self._fixed_rows)
+                        ui_text, self._fixed_rows, pattern=m.focus_pattern())
         self.values = t.values
         self._apply(t.lines)
         self.setUpdatesEnabled(True)

@@ -47,7 +47,7 @@ class VerdictBanner(QFrame):
     def refresh(self) -> None:
         m = self.model
         b = banner(m.result, m.scene, m.states, m.focus_inspection(), m.shown_inspection(), m.focus_fastener(),
-                   m.focus_mate())
+                   m.focus_mate(), m.focus_pattern())
         self.state = b.state
         self._paint(b.role, b.head, b.detail, mark=b.mark)
         if b.tip is not None and self.toolTip() != b.tip:

@@ -212,7 +212,8 @@ class WhatIfPanel(QWidget):
         fids = tuple(self.model.focus_features())
         insp = self.model.focus_inspection()
         fast = self.model.focus_fastener()
-        key = (fids, self.model.scene.units, self.model.scene.standard, insp, fast)
+        pat = self.model.focus_pattern()
+        key = (fids, self.model.scene.units, self.model.scene.standard, insp, fast, pat)
         if key == self._shown and not force:
             return
         self._shown = key
@@ -227,6 +228,10 @@ class WhatIfPanel(QWidget):
         if insp:
             hint = ("The measured part is judged as produced: no what-if here. Pick a mate or a "
                     "feature in the list above to try sizes.")
+        elif pat:
+            hint = (f"Pattern {pat}: judged at its members' measured sizes and the datum feature's produced "
+                    "size (see the readouts and the 2D view); moving them here is not in the window yet. Pick "
+                    "a feature to try sizes.")
         elif fast:
             hint = (f"Fastener {fast}: its position tolerance follows from the fastener and hole sizes "
                     "(see the readouts); there is no what-if state to move. Pick a mate or a feature "
@@ -235,7 +240,7 @@ class WhatIfPanel(QWidget):
             hint = self._hint()
         self.hint.setText(hint)
         self.reset.setVisible(insp is None)
-        self.play.setVisible(insp is None and fast is None)
+        self.play.setVisible(insp is None and fast is None and pat is None)
         self.reset.setEnabled(bool(fids))
         if insp is not None:
             self.inspection = InspectionControls(self.model, insp)

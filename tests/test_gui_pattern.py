@@ -1,0 +1,48 @@
+"""The window on a scene with patterns (the invented pump cover): the pattern is in the contents
+list and opens first, the banner gives the right-way verdict and says the wrong way would differ,
+the 2D pane shows the top view (right and wrong way), the readouts list the members.
+
+The verdict expected is computed here from the scene: each hole 0.085 out radially reads 0.170
+against 0.150 (geometry of the measured coordinates; the shift cannot help, see
+tests/test_pattern_pictures.py)."""
+
+from __future__ import annotations
+
+import os
+from pathlib import Path
+
+import pytest
+
+pytestmark = pytest.mark.gui
+if not os.environ.get("DISPLAY"):
+    pytest.skip("GUI tests need an X display: run them under xvfb-run -a", allow_module_level=True)
+
+from test_gui import _close, _open  # noqa: E402  (one way to open and close the window in tests)
+
+PUMP = Path(__file__).resolve().parents[1] / "scenes" / "pump_cover_bolts.toml"
+
+
+def test_the_pattern_opens_first_with_its_verdict_and_top_view(qtbot):
+    win = _open(qtbot, PUMP)
+    try:
+        m = win.model
+        assert m.focus == ("pattern", "cover-bolts")
+        assert win.verdict.role == "fail"
+        head = win.verdict.text()
+        assert "DOES NOT CONFORM" in head and "0.170" in head and "0.150" in head
+        assert "wrong way" in win.verdict.detail.text()
+        v2 = win.views2d
+        assert v2.tabText(0) == "Pattern (top view)" and not v2.isTabEnabled(1)
+        v2.refresh_current()
+        assert len(v2.canvases["through"].figure.axes) == 2  # right way and wrong way
+        names = [win.readouts.item(r, 0).text() for r in range(win.readouts.rowCount())
+                 if win.readouts.item(r, 0) is not None]
+        assert any(n.startswith("member 4: position after the best fit") for n in names)
+        # the housing's pattern: no measured members, no verdict claimed
+        with qtbot.waitSignal(m.focusChanged, timeout=10_000):
+            m.set_focus("pattern", "housing-studs")
+        assert win.verdict.role == "none"
+        assert len(v2.canvases["through"].figure.axes) in (1, 2)  # redrawn on the next turn
+        qtbot.waitUntil(lambda: len(v2.canvases["through"].figure.axes) == 1, timeout=10_000)
+    finally:
+        _close(win)
