@@ -49,8 +49,8 @@ from __future__ import annotations
 
 import difflib
 
-from .model import Characteristic, DatumSpec, InterfaceSpec, Kind, PatternSpec, Scene, Zone
 from .frames import frame_of, pattern_of
+from .model import Characteristic, DatumSpec, InterfaceSpec, Kind, PatternSpec, Scene, Zone
 from .scenefile import MAX_ID, SceneError, _Ctx, _join, _show, _v
 
 DATUM_KEYS = ("letter", "feature", "boundary")
