@@ -236,12 +236,7 @@ def mmb(feature: Feature | None, higher: tuple[str, ...] | None = None) -> Datum
     >>> round(mmb(boss.with_(tolerance=pos), higher=("A", "C")).value, 6)
     25.05
     """
-    f = _need_feature(feature, "MMB")
-    if not _related(f, higher):
-        return DatumDerived("mmb", f.mmc, "{mmc} (no geometric tolerance to higher datums)", "{}", (f.mmc,))
-    t = B.tolerance_at_mmc(f)
-    s = "+" if f.kind is Kind.PIN else "-"
-    return DatumDerived("mmb", B.perfect_form_boundary(f), "{mmc} " + s + " {t_mmc}", "{} " + s + " {}", (f.mmc, t))
+    return _boundary(_need_feature(feature, "MMB"), higher, "mmb")
 
 
 def lmb(feature: Feature | None, higher: tuple[str, ...] | None = None) -> DatumDerived:
@@ -253,13 +248,21 @@ def lmb(feature: Feature | None, higher: tuple[str, ...] | None = None) -> Datum
     >>> round(lmb(Feature("b", Kind.HOLE, (40.0, 40.05), 8.0, tolerance=perp)).value, 6)
     40.12
     """
-    f = _need_feature(feature, "LMB")
+    return _boundary(_need_feature(feature, "LMB"), higher, "lmb")
+
+
+def _boundary(f: Feature, higher, key: str) -> DatumDerived:
+    """MMB ("mmb") or LMB ("lmb") of the datum feature ``f``: its MMC (LMC), grown by the
+    tolerance at that size toward the material-free side where ``f`` is related to ``higher``."""
+    mm = key == "mmb"
+    size, name = (f.mmc, "mmc") if mm else (f.lmc, "lmc")
     if not _related(f, higher):
-        return DatumDerived("lmb", f.lmc, "{lmc} (no geometric tolerance to higher datums)", "{}", (f.lmc,))
-    t = B.tolerance_at_lmc(f)
-    s = "+" if f.kind is Kind.HOLE else "-"
-    return DatumDerived("lmb", f.lmc + (t if f.kind is Kind.HOLE else -t),
-                        "{lmc} " + s + " {t_lmc}", "{} " + s + " {}", (f.lmc, t))
+        return DatumDerived(key, size, "{" + name + "} (no geometric tolerance to higher datums)", "{}", (size,))
+    t = B.tolerance_at_mmc(f) if mm else B.tolerance_at_lmc(f)
+    outward = (f.kind is Kind.PIN) == mm  # a pin's MMB and a hole's LMB lie outside the size
+    s = "+" if outward else "-"
+    return DatumDerived(key, size + (t if outward else -t), "{" + name + "} " + s + " {t_" + name + "}",
+                        "{} " + s + " {}", (size, t))
 
 
 @dataclass(frozen=True)
