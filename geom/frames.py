@@ -21,7 +21,8 @@ results (text and JSON).
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
+from functools import lru_cache
 
 from .datums import DatumFrame, DatumRef, DatumShift, datum_shift, frame, lmb, mmb
 from .model import Kind, PatternSpec, Scene
@@ -124,7 +125,7 @@ def analyse_frames(scene: Scene) -> FramesResult:
     empty when it has none."""
     if not (scene.datums or scene.patterns or scene.interfaces):
         return FramesResult()
-    from .patterns import gauge, mate_patterns, members, pattern_conforms, wrong_way
+    from .patterns import gauge, mate_patterns, members
 
     datums = tuple(r for r in (_datum(scene, d) for d in scene.datums) if r is not None)
     pats = []
@@ -135,15 +136,36 @@ def analyse_frames(scene: Scene) -> FramesResult:
         mem = members(p, [p.feature.mmc] * p.count)
         right = wrong = None
         if spec.measured:
-            xy = [(x, y) for x, y, _s in spec.measured]
-            sizes = [s for _x, _y, s in spec.measured]
-            dsz = dict(spec.datum_sizes) or None
-            right = pattern_conforms(p, xy, sizes, dsz)
-            wrong = wrong_way(p, xy, sizes, dsz)
+            right, wrong = _judged(p, spec, tuple(sorted(spec.datum_sizes)))
         pats.append(PatternResult(spec, p, mem, gauge(p), right, wrong))
     inter = tuple(InterfaceResult(i.holes, i.pins, mate_patterns(by_id[i.holes], by_id[i.pins], i.fastener))
                   for i in scene.interfaces)
     return FramesResult(datums, tuple(pats), inter)
+
+
+@lru_cache(maxsize=64)
+def _judged(pattern, spec: PatternSpec, sizes: tuple[tuple[str, float], ...]):
+    from .patterns import pattern_conforms, wrong_way
+
+    xy = [(x, y) for x, y, _s in spec.measured]
+    member_sizes = [s for _x, _y, s in spec.measured]
+    dsz = dict(sizes) or None
+    return pattern_conforms(pattern, xy, member_sizes, dsz), wrong_way(pattern, xy, member_sizes, dsz)
+
+
+def pattern_at(pr: PatternResult, datum_sizes: dict[str, float] | None) -> PatternResult:
+    """The measured pattern ``pr`` judged again with its datum features' produced sizes
+    ``datum_sizes`` (letter -> size) in place of the scene's (a what-if of the datum feature's
+    size: the shift it allows changes, the members' own zones do not); ``pr`` itself when the
+    pattern was not measured or nothing differs. Remembered: a slider going back is free."""
+    if pr.right is None or not datum_sizes:
+        return pr
+    sizes = dict(pr.spec.datum_sizes)
+    sizes.update({k: float(v) for k, v in datum_sizes.items()})
+    if sizes == dict(pr.spec.datum_sizes):
+        return pr
+    right, wrong = _judged(pr.pattern, pr.spec, tuple(sorted(sizes.items())))
+    return replace(pr, right=right, wrong=wrong)
 
 
 # ---------------------------------------------------------------- words

@@ -155,3 +155,19 @@ def test_the_window_logic_lists_focuses_and_removes_a_pattern():
     d = tomllib.loads(dumps(sc))
     removal(sc, "feature", "housing-pin")[0](d)
     assert [p["id"] for p in d["pattern"]] == ["cover-bolts"] and d["interface"] == []
+
+
+def test_the_datum_size_what_if_changes_the_shift_not_the_zones():
+    from geom.frames import pattern_at
+
+    # every hole 0.09 off in +x (see above): with the bore at 52.02 the pattern may move 0.02 and
+    # conforms (0.14 <= 0.15); with the bore at its MMB 51.98 there is no shift: 0.18 > 0.15
+    locs = _scene().patterns[0].locations
+    measured = tuple((x + 0.09, y, 9.0) for x, y in locs)
+    pr = analyse_scene(_scene(measured, (("B", 52.02),))).frames.patterns[0]
+    assert pr.right.conforms
+    at_mmb = pattern_at(pr, {"B": 52.0})  # 52.0 - 51.98 = 0.02 diametral, 0.01 radial
+    assert [r.position for r in at_mmb.right.readings] == pytest.approx([2 * (0.09 - 0.01)] * 4, abs=1e-6)
+    assert not at_mmb.right.conforms  # 0.16 > 0.15
+    assert [r.allowed for r in at_mmb.right.readings] == [r.allowed for r in pr.right.readings]  # zones unchanged
+    assert pattern_at(pr, {"B": 52.02}) is pr  # the scene's own size: the scene's result

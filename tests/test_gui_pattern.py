@@ -46,3 +46,27 @@ def test_the_pattern_opens_first_with_its_verdict_and_top_view(qtbot):
         qtbot.waitUntil(lambda: len(v2.canvases["through"].figure.axes) == 1, timeout=10_000)
     finally:
         _close(win)
+
+
+def test_the_datum_size_is_the_patterns_what_if(qtbot):
+    """The pattern's what-if control is its datum feature's produced size (starting at the size
+    the scene measured); moving it changes the shift the pattern may take: size - MMB (ASME
+    Y14.5 datum feature shift, from memory), computed here from the scene's numbers."""
+    win = _open(qtbot, PUMP)
+    try:
+        m = win.model
+        assert m.focus_features() == ["cover-pilot"]
+        g = win.whatif.groups["cover-pilot"]
+        assert g.title().startswith("datum B") and g.size.spin.value() == pytest.approx(52.020)
+        mmb = 52.000 - 0.020  # the pilot's MMC less its perpendicularity at MMC
+        assert f"shift available {m.scene.units.fmt(52.020 - mmb)}" in win.verdict.detail.text()
+        with qtbot.waitSignal(m.statesChanged, timeout=10_000):
+            g.size.spin.setValue(52.030)
+        qtbot.waitUntil(lambda: f"shift available {m.scene.units.fmt(52.030 - mmb)}" in win.verdict.detail.text(),
+                        timeout=10_000)
+        # the members' own zones do not grow with the shift
+        names = {win.readouts.item(r, 0).text(): win.readouts.item(r, 2).text()
+                 for r in range(win.readouts.rowCount()) if win.readouts.item(r, 2) is not None}
+        assert "allowed 0.150" in names["member 1: position after the best fit"]
+    finally:
+        _close(win)

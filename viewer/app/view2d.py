@@ -11,7 +11,6 @@ from PyQt5.QtWidgets import QTabWidget
 from .model import SceneModel
 from .views import draw_problem
 
-
 MARKS_MEASURED = ("through", "bonus")  # the 2D views that mark a measured part when one is shown
 
 
@@ -187,8 +186,9 @@ class Views2D(QTabWidget):
             page = pane_figsize(w, h, font_scale())  # drawn for the pane, text at the desktop's size
             if isinstance(sub, tuple) and sub[0] == "pattern":  # its top view (the report's), right and wrong way
                 from viewer.figures.pattern import pattern_figure
+                from viewer.windowlogic.whatif import pattern_now
 
-                fig = pattern_figure(m.result, sub[1], figsize=page)
+                fig = pattern_figure(m.result, sub[1], figsize=page, pr=pattern_now(m.result, m.scene, sub[1], m.states))
                 fig._matezone_page = page
                 return fig
             if isinstance(sub, tuple):  # a fastener: its section schematic (the report's), in every tab

@@ -47,11 +47,13 @@ def exaggeration_for(pr) -> float:
     return max(1.0, nice_floor(room / max(zone, 1e-12)))
 
 
-def draw_pattern(ax, res: SceneResult, pid: str, way: str = "right", k: float | None = None, fs: float = 8.0):
+def draw_pattern(ax, res: SceneResult, pid: str, way: str = "right", k: float | None = None, fs: float = 8.0,
+                 pr=None):
     """Draw pattern ``pid`` on ``ax``: ``way`` "right" (the measured fit within the shift) or
     "wrong" (the shift as bonus); without measured members, the pattern at MMC and its gauge.
-    Returns the factor ``k`` the zones are drawn at."""
-    pr = pattern_result(res, pid)
+    ``pr``: the pattern's result to draw (a what-if of the datum size), else the scene's. Returns
+    the factor ``k`` the zones are drawn at and the legend's (artist, text) pairs."""
+    pr = pr or pattern_result(res, pid)
     u = res.scene.units
     p = pr.pattern
     k = k or exaggeration_for(pr)
@@ -117,9 +119,10 @@ def draw_pattern(ax, res: SceneResult, pid: str, way: str = "right", k: float | 
     return k, handles
 
 
-def pattern_figure(res: SceneResult, pid: str, figsize=FIGSIZE, fs: float = 8.0) -> Figure:
-    """The pattern's picture alone: one panel (no measured members) or right and wrong way."""
-    pr = pattern_result(res, pid)
+def pattern_figure(res: SceneResult, pid: str, figsize=FIGSIZE, fs: float = 8.0, pr=None) -> Figure:
+    """The pattern's picture alone: one panel (no measured members) or right and wrong way;
+    ``pr`` as :func:`draw_pattern` takes it."""
+    pr = pr or pattern_result(res, pid)
     ways = ("right", "wrong") if pr.right is not None else ("right",)
     with style_context():
         fig = Figure(figsize=figsize, dpi=DPI, facecolor=S.BACKGROUND)
@@ -128,7 +131,7 @@ def pattern_figure(res: SceneResult, pid: str, figsize=FIGSIZE, fs: float = 8.0)
         handles = None
         for i, way in enumerate(ways):
             ax = fig.add_axes((0.06 + i * (w + 0.02), 0.22, w - 0.02, 0.68))
-            _k, h = draw_pattern(ax, res, pid, way, k, fs)
+            _k, h = draw_pattern(ax, res, pid, way, k, fs, pr=pr)
             handles = handles or h
         fig.text(0.03, 0.97, f"Pattern '{pid}' in its datum frame ({'|'.join(pr.pattern.frame.letters)}), top view",
                  fontsize=fs * 1.3, weight="bold", va="top", gid="title")
@@ -136,5 +139,5 @@ def pattern_figure(res: SceneResult, pid: str, figsize=FIGSIZE, fs: float = 8.0)
                  f"gauge, simulator and locations true ({res.scene.units.value})",
                  fontsize=fs * 0.85, va="bottom", gid="footer")
         fig.legend([h for h, _ in handles], [t for _, t in handles], loc="lower right", fontsize=fs * 0.8,
-                   bbox_to_anchor=(0.99, 0.06), frameon=True, ncol=2)
+                   bbox_to_anchor=(0.99, 0.10), frameon=True, ncol=2)
     return fig

@@ -80,13 +80,14 @@ def inspection_banner(fid: str, res, units) -> Banner:
     return Banner(v.role, v.role, v.headline, "<br>".join(lines), tip=res.axis_governs or "")
 
 
-def pattern_banner(res, scene, pid: str) -> Banner:
-    """A pattern: the measured pattern's verdict (the best fit within the datum shift), the wrong
-    way beside it where it would differ, else its gauge; the interfaces it is in."""
-    from viewer.figures.pattern import pattern_result
+def pattern_banner(res, scene, pid: str, states: dict | None = None) -> Banner:
+    """A pattern: the measured pattern's verdict (the best fit within the datum shift, the datum
+    features at their what-if sizes ``states``), the wrong way beside it where it would differ,
+    else its gauge; the interfaces it is in."""
+    from .whatif import pattern_now
 
     u, st = scene.units, scene.standard
-    pr = pattern_result(res, pid)
+    pr = pattern_now(res, scene, pid, states or {})
     p = pr.pattern
     lines = [f"{p.count} × {p.feature.id} to {'|'.join(p.frame.letters)}, {p.requirement} requirement; gauge "
              f"{pr.gauge.pins[0].kind}s ⌀{u.fmt(pr.gauge.pins[0].diameter.value)} (VC) at the basic locations"]
@@ -97,6 +98,10 @@ def pattern_banner(res, scene, pid: str) -> Banner:
         head = (f"PATTERN {pid} {'CONFORMS' if c.conforms else 'DOES NOT CONFORM'}: member {c.governs + 1} "
                 f"⌀{u.fmt_cmp(g.position, g.allowed)[0]} {'<=' if c.conforms else '>'} ⌀{u.fmt_cmp(g.position, g.allowed)[1]}"
                 " after the best fit within the datum shift")
+        if c.datum is not None:
+            lines.append(f"datum {pr.pattern.frame.secondary.letter} at {u.fmt(c.datum.size)}: shift available "
+                         f"{u.fmt(c.datum.diametral.value)} (radial {u.fmt(c.datum.radial.value)}), used "
+                         f"({u.fmt(c.shift[0])}, {u.fmt(c.shift[1])})")
         if pr.wrong.conforms != c.conforms:
             lines.append("Adding the datum shift to each member's tolerance (the wrong way) would "
                          f"{'accept' if pr.wrong.conforms else 'reject'} it: the shift moves the pattern as one body.")
@@ -121,5 +126,5 @@ def banner(res, scene, states, focus_inspection: str | None, inspection, fastene
     if fastener is not None:
         return fastener_banner(res, scene, fastener)
     if pattern is not None:
-        return pattern_banner(res, scene, pattern)
+        return pattern_banner(res, scene, pattern, states)
     return mate_banner(res, scene, mate, states)

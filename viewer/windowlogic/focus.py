@@ -46,6 +46,10 @@ def focus_features(scene: Scene, focus: tuple[str, object]) -> list[str]:
         return [m.hole, m.pin]
     if kind in ("feature", "inspection"):
         return [key]
+    if kind == "pattern":  # the datum features whose size lets the pattern shift
+        from .whatif import pattern_datum_features
+
+        return [fid for _ltr, fid in pattern_datum_features(scene, key)]
     return []
 
 

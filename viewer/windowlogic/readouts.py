@@ -111,13 +111,13 @@ def fastener_lines(t: Table, res: SceneResult, units, standard, only: str | None
                    fr.position_tolerance_unprojected.formula(u, st)))
 
 
-def pattern_lines(t: Table, res: SceneResult, units, standard, pid: str) -> None:
+def pattern_lines(t: Table, res: SceneResult, units, standard, pid: str, states: dict | None = None) -> None:
     """A pattern's datums, members (measured: the right-way reading and the wrong way's allowed;
     else the zone at MMC) and gauge, and the pairs of its interfaces."""
-    from viewer.figures.pattern import pattern_result
+    from .whatif import pattern_now
 
     u, st = units, standard
-    pr = pattern_result(res, pid)
+    pr = pattern_now(res, res.scene, pid, states or {})
     t.add((f"pattern {pid}", "", f"{pr.pattern.count} × {pr.pattern.feature.id} to "
            f"{'|'.join(pr.pattern.frame.letters)}, {pr.pattern.requirement} requirement"), bold=True, bg=FIXED_HEAD)
     for d in res.frames.datums:
@@ -151,7 +151,7 @@ def focus_table(res: SceneResult, scene, states, features, mate: int | None, fas
     u, st = scene.units, scene.standard
     t = Table(ui)
     if pattern is not None:
-        pattern_lines(t, res, u, st, pattern)
+        pattern_lines(t, res, u, st, pattern, states)
         return t
     for fid in features:
         feature_lines(t, res, fid, states[fid], u, st, fixed)

@@ -37,15 +37,49 @@ def moved_state(f: Feature, old: B.FeatureState, size: float | None = None, shar
     )
 
 
+def measured_datum_sizes(scene: Scene) -> dict[str, float]:
+    """Feature id -> the produced size a measured pattern gives for that datum feature."""
+    letters = {d.letter: d.feature for d in scene.datums if d.feature is not None}
+    out: dict[str, float] = {}
+    for p in scene.patterns:
+        for letter, size in p.datum_sizes:
+            if letter in letters:
+                out.setdefault(letters[letter], float(size))
+    return out
+
+
+def pattern_datum_features(scene: Scene, pid: str) -> list[tuple[str, str]]:
+    """(letter, feature id) of the datum features of size at MMB or LMB in pattern ``pid``'s
+    frame: the sizes whose departure lets the pattern shift, the pattern's what-if controls."""
+    spec = next(p for p in scene.patterns if p.id == pid)
+    tol = scene.feature(spec.feature).tolerance
+    by = {d.letter: d for d in scene.datums}
+    return [(ltr, by[ltr].feature) for ltr in (tol.datums if tol is not None else ())
+            if ltr in by and by[ltr].feature is not None and by[ltr].boundary in ("MMB", "LMB")]
+
+
+def pattern_now(res, scene: Scene, pid: str, states: dict):
+    """Pattern ``pid``'s result (:class:`geom.frames.PatternResult`) with its datum features at
+    their what-if sizes (``states``): the datum shift follows the datum feature's size."""
+    from geom.frames import pattern_at
+    from viewer.figures.pattern import pattern_result
+
+    sizes = {ltr: states[fid].size for ltr, fid in pattern_datum_features(scene, pid) if fid in states}
+    return pattern_at(pattern_result(res, pid), sizes)
+
+
 def settled_states(scene: Scene, old: dict[str, B.FeatureState]) -> dict[str, B.FeatureState]:
     """A state for every feature of ``scene``: its state in ``old`` while the size is still within
     its limits; at MMC with the share and direction kept when not; the worst case
     (:func:`geom.boundaries.worst_case_state`: a pin in a mate tilts opposite to the hole, the
     default the 2D views and the report use) for a feature ``old`` does not hold."""
     in_mate = {fid for m in scene.mates for fid in (m.hole, m.pin)}
+    measured = measured_datum_sizes(scene)
     states = {}
     for f in scene.features:
         st = old.get(f.id)
+        if st is None and f.id in measured and f.limits[0] <= measured[f.id] <= f.limits[1]:
+            st = B.FeatureState(measured[f.id], 1.0, 0.0)  # a measured pattern's datum: as produced
         lo, hi = f.limits
         if st is not None and lo <= st.size <= hi:
             states[f.id] = st

@@ -130,9 +130,10 @@ class _SliderSpin(QWidget):
 class FeatureControls(QGroupBox):
     """Produced size (MMC to LMC), tilt direction and share used, for one feature."""
 
-    def __init__(self, model: SceneModel, fid: str, parent=None):
+    def __init__(self, model: SceneModel, fid: str, parent=None, datum: str | None = None):
         f = model.scene.feature(fid)
-        super().__init__(f"{f.kind.value} {fid}", parent)
+        # a pattern's datum feature: only its size moves the pattern (its shift); tilt and share do not
+        super().__init__(f"datum {datum}: {f.kind.value} {fid}" if datum else f"{f.kind.value} {fid}", parent)
         self.model, self.fid = model, fid
         u = model.scene.units
         st = model.scene.standard
@@ -153,8 +154,14 @@ class FeatureControls(QGroupBox):
         self.share.valueChanged.connect(lambda v: model.set_state(fid, share=v / 100.0))
         lay.addRow("Produced size", self.size)
         has_tol = f.tolerance is not None
-        lay.addRow("Tilt direction", self.direction)
-        lay.addRow("Tolerance used", self.share)
+        if datum is None:
+            lay.addRow("Tilt direction", self.direction)
+            lay.addRow("Tolerance used", self.share)
+        else:
+            self.direction.hide()
+            self.share.hide()
+            self.size.setToolTip("The datum feature's produced size: its departure from the MMB is the shift "
+                                 "the pattern may take, as one body")
         for w in (self.direction, self.share):
             w.setEnabled(has_tol)
         if f.tolerance is not None and f.tolerance.zone is Zone.WIDTH:
@@ -229,9 +236,8 @@ class WhatIfPanel(QWidget):
             hint = ("The measured part is judged as produced: no what-if here. Pick a mate or a "
                     "feature in the list above to try sizes.")
         elif pat:
-            hint = (f"Pattern {pat}: judged at its members' measured sizes and the datum feature's produced "
-                    "size (see the readouts and the 2D view); moving them here is not in the window yet. Pick "
-                    "a feature to try sizes.")
+            hint = (f"Pattern {pat}: move the datum feature's produced size: its departure from the MMB "
+                    "is the shift the pattern may take, as one body; each member keeps its own zone.")
         elif fast:
             hint = (f"Fastener {fast}: its position tolerance follows from the fastener and hole sizes "
                     "(see the readouts); there is no what-if state to move. Pick a mate or a feature "
@@ -247,8 +253,13 @@ class WhatIfPanel(QWidget):
             self.inspection.load_button.clicked.connect(self.loadRequested)
             self.lay.addWidget(self.inspection)
             return
+        datum_of = {}
+        if pat:
+            from viewer.windowlogic.whatif import pattern_datum_features
+
+            datum_of = {fid: ltr for ltr, fid in pattern_datum_features(self.model.scene, pat)}
         for fid in fids:
-            g = FeatureControls(self.model, fid)
+            g = FeatureControls(self.model, fid, datum=datum_of.get(fid))
             self.groups[fid] = g
             self.lay.addWidget(g)
 
