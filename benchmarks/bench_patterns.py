@@ -8,7 +8,6 @@ Run: .venv/bin/python benchmarks/bench_patterns.py [repeats]
 """
 
 import statistics
-import subprocess
 import sys
 import time
 from pathlib import Path
@@ -18,6 +17,7 @@ import numpy as np
 ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 
+from bench_analyze import median_time  # noqa: E402  (the same timing of a command)
 from geom import load  # noqa: E402
 from geom.datums import DatumRef, frame  # noqa: E402
 from geom.model import Characteristic, Feature, Kind, Material, Tolerance  # noqa: E402
@@ -43,15 +43,6 @@ def fit_times(n: int, repeats: int) -> list[float]:
     return out
 
 
-def run(cmd, repeats):
-    ts = []
-    for _ in range(repeats):
-        t0 = time.perf_counter()
-        subprocess.run(cmd, check=True, stdout=subprocess.DEVNULL, cwd=ROOT)
-        ts.append(time.perf_counter() - t0)
-    return statistics.median(ts)
-
-
 def main():
     repeats = int(sys.argv[1]) if len(sys.argv) > 1 else 15
     pattern_conforms(_pattern(4), bolt_circle(4, 72.0, 10.0), [9.0] * 4, 52.0)  # scipy imported once
@@ -59,8 +50,8 @@ def main():
         ts = fit_times(n, repeats)
         print(f"best fit within the shift, {n:2d} members: median {1e3 * statistics.median(ts):7.1f} ms, "
               f"worst {1e3 * max(ts):7.1f} ms (target: well under 1000 ms)")
-    plain = run([sys.executable, "-m", "matezone.cli", "analyze", "scenes/gearbox_endcap_dowel.toml"], 5)
-    pats = run([sys.executable, "-m", "matezone.cli", "analyze", "scenes/pump_cover_bolts.toml"], 5)
+    plain = median_time([sys.executable, "-m", "matezone.cli", "analyze", "scenes/gearbox_endcap_dowel.toml"], 5)
+    pats = median_time([sys.executable, "-m", "matezone.cli", "analyze", "scenes/pump_cover_bolts.toml"], 5)
     print(f"matezone analyze: pattern demo {1e3 * pats:.0f} ms (target <= 1000 ms); plain demo {1e3 * plain:.0f} ms")
     assert load(ROOT / "scenes" / "pump_cover_bolts.toml").patterns  # the scene measured is the pattern demo
 
