@@ -70,3 +70,15 @@ def test_the_datum_size_is_the_patterns_what_if(qtbot):
         assert "allowed 0.150" in names["member 1: position after the best fit"]
     finally:
         _close(win)
+
+
+def test_worst_case_puts_the_datum_feature_at_its_mmc(qtbot):
+    win = _open(qtbot, PUMP)
+    try:
+        m = win.model
+        assert m.states["cover-pilot"].size == pytest.approx(52.020)  # as the scene measured it
+        with qtbot.waitSignal(m.statesChanged, timeout=10_000):
+            win.whatif.reset.click()
+        assert m.states["cover-pilot"].size == pytest.approx(52.000)  # the bore's MMC: the worst case
+    finally:
+        _close(win)

@@ -174,13 +174,14 @@ class SceneModel(QObject):
 
     def reset_states(self) -> None:
         """Every feature back to the worst case: MMC, all of the tolerance used."""
-        self._reset_states(keep=False)
+        self._reset_states(keep=False, measured=False)
         self.statesChanged.emit()
 
-    def _reset_states(self, keep: bool = True) -> None:
+    def _reset_states(self, keep: bool = True, measured: bool = True) -> None:
         """A state for every feature: the one it had while its size is within the limits, else
-        the worst case (:func:`viewer.windowlogic.whatif.settled_states`)."""
-        self.states = settled_states(self.scene, self.states if keep else {})
+        the worst case (:func:`viewer.windowlogic.whatif.settled_states`; a measured pattern's
+        datum feature at its measured size unless ``measured`` is False)."""
+        self.states = settled_states(self.scene, self.states if keep else {}, measured)
 
     def _default_focus(self) -> None:
         self.focus = focus.default_focus(self.scene)

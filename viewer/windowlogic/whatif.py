@@ -68,13 +68,15 @@ def pattern_now(res, scene: Scene, pid: str, states: dict):
     return pattern_at(pattern_result(res, pid), sizes)
 
 
-def settled_states(scene: Scene, old: dict[str, B.FeatureState]) -> dict[str, B.FeatureState]:
+def settled_states(scene: Scene, old: dict[str, B.FeatureState], measured: bool = True) -> dict[str, B.FeatureState]:
     """A state for every feature of ``scene``: its state in ``old`` while the size is still within
     its limits; at MMC with the share and direction kept when not; the worst case
     (:func:`geom.boundaries.worst_case_state`: a pin in a mate tilts opposite to the hole, the
-    default the 2D views and the report use) for a feature ``old`` does not hold."""
+    default the 2D views and the report use) for a feature ``old`` does not hold, except a measured
+    pattern's datum feature, which starts at the size measured (``measured`` False: it too at the
+    worst case)."""
     in_mate = {fid for m in scene.mates for fid in (m.hole, m.pin)}
-    measured = measured_datum_sizes(scene)
+    measured = measured_datum_sizes(scene) if measured else {}
     states = {}
     for f in scene.features:
         st = old.get(f.id)
