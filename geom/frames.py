@@ -91,6 +91,14 @@ class PatternResult:
     gauge: object  # geom.patterns.Gauge
     right: object | None = None  # PatternCheck of the measured members (best fit within the shift)
     wrong: object | None = None  # the same with the shift added to each member (for teaching)
+    composite: object | None = None  # geom.composite.CompositeCheck where the pattern has a lower tier
+
+    @property
+    def conforms(self) -> bool | None:
+        """The measured pattern's verdict: every tier (None where nothing was measured)."""
+        if self.right is None:
+            return None
+        return self.right.conforms and (self.composite is None or self.composite.lower.conforms)
 
 
 @dataclass(frozen=True)
@@ -134,10 +142,10 @@ def analyse_frames(scene: Scene) -> FramesResult:
         p = pattern_of(scene, spec)
         by_id[spec.id] = p
         mem = members(p, [p.feature.mmc] * p.count)
-        right = wrong = None
+        right = wrong = comp = None
         if spec.measured:
-            right, wrong = _judged(p, spec, tuple(sorted(spec.datum_sizes)))
-        pats.append(PatternResult(spec, p, mem, gauge(p), right, wrong))
+            right, wrong, comp = _judged(p, spec, tuple(sorted(spec.datum_sizes)))
+        pats.append(PatternResult(spec, p, mem, gauge(p), right, wrong, comp))
     inter = tuple(InterfaceResult(i.holes, i.pins, mate_patterns(by_id[i.holes], by_id[i.pins], i.fastener))
                   for i in scene.interfaces)
     return FramesResult(datums, tuple(pats), inter)
@@ -145,12 +153,26 @@ def analyse_frames(scene: Scene) -> FramesResult:
 
 @lru_cache(maxsize=64)
 def _judged(pattern, spec: PatternSpec, sizes: tuple[tuple[str, float], ...]):
+    """(right way, wrong way, both tiers or None) of a measured pattern at datum ``sizes``."""
     from .patterns import pattern_conforms, wrong_way
 
     xy = [(x, y) for x, y, _s in spec.measured]
     member_sizes = [s for _x, _y, s in spec.measured]
     dsz = dict(sizes) or None
-    return pattern_conforms(pattern, xy, member_sizes, dsz), wrong_way(pattern, xy, member_sizes, dsz)
+    comp = None
+    if spec.lower is not None:
+        from .composite import composite_conforms
+
+        t2, datums, form = spec.lower
+        comp = composite_conforms(pattern, t2, datums, xy, member_sizes, dsz, form=form)
+    wrong = wrong_way(pattern, xy, member_sizes, dsz)
+    # the wrong way only where there is a datum shift to misuse (a datum feature at MMB or LMB)
+    return pattern_conforms(pattern, xy, member_sizes, dsz), (wrong if _shifts(pattern) else None), comp
+
+
+def _shifts(pattern) -> bool:
+    """Does the pattern's frame hold a datum feature of size at MMB or LMB (a datum shift)?"""
+    return any(not r.is_plane and r.boundary in ("MMB", "LMB") for r in pattern.frame.refs)
 
 
 def pattern_at(pr: PatternResult, datum_sizes: dict[str, float] | None) -> PatternResult:
@@ -164,8 +186,8 @@ def pattern_at(pr: PatternResult, datum_sizes: dict[str, float] | None) -> Patte
     sizes.update({k: float(v) for k, v in datum_sizes.items()})
     if sizes == dict(pr.spec.datum_sizes):
         return pr
-    right, wrong = _judged(pr.pattern, pr.spec, tuple(sorted(sizes.items())))
-    return replace(pr, right=right, wrong=wrong)
+    right, wrong, comp = _judged(pr.pattern, pr.spec, tuple(sorted(sizes.items())))
+    return replace(pr, right=right, wrong=wrong, composite=comp)
 
 
 # ---------------------------------------------------------------- words
@@ -208,6 +230,17 @@ def frames_text(fr: FramesResult, scene: Scene) -> list[str]:
                 mark = "  <- governs" if r.index == chk.governs else ""
                 out.append(f"    member {r.index + 1}: position {u.fmt(r.position)} / allowed {u.fmt(r.allowed)}, "
                            f"margin {u.fmt(r.margin, signed=True)}{mark}")
+        if pr.composite is not None:
+            c = pr.composite
+            t2, datums, form = pr.spec.lower
+            kind = "composite, feature-relating tier" if form == "composite" else "lower single segment"
+            out.append(f"  {kind}: ⌀{u.fmt(t2)} to {'|'.join(datums)} "
+                       f"({'orienting only, free to translate' if form == 'composite' else 'located by its datums'}): "
+                       f"{'CONFORMS' if c.lower.conforms else 'DOES NOT CONFORM'}")
+            for r in c.lower.readings:
+                out.append(f"    member {r.index + 1}: position {u.fmt(r.position)} / allowed {u.fmt(r.allowed)}, "
+                           f"margin {u.fmt(r.margin, signed=True)}")
+            out.append(f"  both tiers: {'CONFORMS' if pr.conforms else 'DOES NOT CONFORM'} ({c.governs} tier governs)")
         out.append("")
     for it in fr.interfaces:
         m = it.mate
@@ -260,6 +293,13 @@ def frames_to_json(fr: FramesResult, scene: Scene) -> dict:
                     "members": [{"position": _r(r.position), "allowed": _r(r.allowed), "margin": _r(r.margin)}
                                 for r in chk.readings],
                 }
+        if pr.composite is not None:
+            t2, datums, form = pr.spec.lower
+            lo = pr.composite.lower
+            entry["lower"] = {"value": t2, "datums": list(datums), "form": form, "conforms": lo.conforms,
+                              "members": [{"position": _r(r.position), "allowed": _r(r.allowed),
+                                           "margin": _r(r.margin)} for r in lo.readings]}
+            entry["conforms"] = pr.conforms
         out["patterns"][p.id] = entry
     for it in fr.interfaces:
         m = it.mate

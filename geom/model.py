@@ -237,7 +237,8 @@ class PatternSpec:
     position tolerance, whose datums are the frame) at basic ``locations`` (x, y) in the datum
     frame; ``requirement`` "simultaneous" or "separate" (None: the standard's default).
     ``measured``: per member (x, y, size) as produced, from the datum feature's actual axis;
-    ``datum_sizes``: produced sizes of the datum features of size (letter, size)."""
+    ``datum_sizes``: produced sizes of the datum features of size (letter, size). ``lower``:
+    (t2, repeated datums, "composite" | "two_segment") of a second tier."""
 
     id: str
     feature: str
@@ -245,6 +246,8 @@ class PatternSpec:
     requirement: str | None = None
     measured: tuple[tuple[float, float, float], ...] = ()
     datum_sizes: tuple[tuple[str, float], ...] = ()
+    # a composite position's lower tier (or the lower of two single segments): (value, datums, form)
+    lower: tuple[float, tuple[str, ...], str] | None = None
 
 
 @dataclass(frozen=True)

@@ -54,7 +54,9 @@ from .model import Characteristic, DatumSpec, InterfaceSpec, Kind, PatternSpec, 
 from .scenefile import MAX_ID, SceneError, _Ctx, _join, _show, _v
 
 DATUM_KEYS = ("letter", "feature", "boundary")
-PATTERN_KEYS = ("id", "feature", "locations", "bolt_circle", "requirement", "measured", "datum_sizes")
+PATTERN_KEYS = ("id", "feature", "locations", "bolt_circle", "requirement", "measured", "datum_sizes", "lower")
+LOWER_KEYS = ("value", "datums", "form")
+LOWER_FORMS = ("composite", "two_segment")  # geom.composite.FORMS
 BOLT_CIRCLE_KEYS = ("count", "diameter", "start")
 INTERFACE_KEYS = ("holes", "pins", "fastener")
 BOUNDARIES = ("RMB", "MMB", "LMB")  # geom.datums.BOUNDARIES (not imported: loading stays light)
@@ -207,7 +209,28 @@ def _pattern(c: _Ctx, v, i: int, scene: Scene, by_id: dict) -> PatternSpec:
         if need:
             c.fail(_join(path, "datum_sizes"), f"missing {', '.join(need)}: with measured members, a datum "
                                                f"feature at MMB or LMB needs its produced size")
-    return PatternSpec(pid, fid, locs, req, meas, tuple(sizes))
+    lower = _lower(c, v["lower"], _join(path, "lower"), pat) if "lower" in v else None
+    return PatternSpec(pid, fid, locs, req, meas, tuple(sizes), lower)
+
+
+def _lower(c: _Ctx, v, path: str, pat) -> tuple[float, tuple[str, ...], str]:
+    """``lower = { value = 0.05, datums = ["A"], form = "composite" }``: the second tier."""
+    from .composite import _lower_located, lower_feature
+
+    c.table(v, path, LOWER_KEYS, required=("value", "datums"))
+    t2 = c.number(v["value"], _join(path, "value"), positive=True)
+    dp = _join(path, "datums")
+    ds = v["datums"]
+    if not isinstance(ds, list) or not ds or not all(isinstance(d, str) for d in ds):
+        c.fail(dp, f"expected a list of datum letters starting with A, e.g. [\"A\"], got {_show(ds)}")
+    form = c.string(v["form"], _join(path, "form"), LOWER_FORMS) if "form" in v else "composite"
+    try:
+        feat = lower_feature(pat, t2, tuple(ds))
+        if form == "two_segment":
+            _lower_located(pat, feat)
+    except ValueError as e:
+        c.fail(_join(path, "value") if "below the upper" in str(e) else dp, str(e).split(": ", 1)[-1])
+    return (t2, tuple(ds), form)
 
 
 def _interface(c: _Ctx, v, i: int, scene: Scene, pats: dict) -> InterfaceSpec:
@@ -291,6 +314,9 @@ def dump_frames(scene: Scene) -> list[str]:
             out.append(f"measured = {_v([list(r) for r in p.measured])}")
         if p.datum_sizes:
             out.append("datum_sizes = { " + ", ".join(f"{_key(k)} = {_v(float(s))}" for k, s in p.datum_sizes) + " }")
+        if p.lower is not None:
+            t2, ds, form = p.lower
+            out.append(f"lower = {{ value = {_v(t2)}, datums = {_v(list(ds))}, form = {_v(form)} }}")
     for s in scene.interfaces:
         out += ["", "[[interface]]", f"holes = {_v(s.holes)}", f"pins = {_v(s.pins)}"]
         if s.fastener is not None:

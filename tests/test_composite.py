@@ -120,3 +120,26 @@ def test_bad_lower_tiers_are_refused():
         composite_conforms(p, 0.1, ("A",), xy, [6.6] * 4, form="stacked")
     with pytest.raises(ValueError, match="not computed yet"):
         composite_conforms(p, 0.1, ("A", "B"), xy, [6.6] * 4, form="two_segment")
+
+
+def test_the_sensor_plate_demo_reads_both_tiers():
+    """The invented sensor plate: every hole (0.150, 0.050) off, hole 3 a further 0.045 in x.
+    Upper tier (planes B, C: no shift): 2 * hypot(0.195, 0.050) for hole 3 against 0.400 + bonus
+    0.020; lower tier: the common offset goes, the 0.045 is shared out by the free fit, never
+    more than 0.045 x 2 for hole 3 alone (computed here)."""
+    from pathlib import Path
+
+    from geom import analyse_scene, load, result_to_json
+
+    res = analyse_scene(load(Path(__file__).resolve().parents[1] / "scenes" / "sensor_plate_composite.toml"))
+    (pr,) = res.frames.patterns
+    assert pr.wrong is None  # planes only: no datum shift to misuse
+    up = pr.composite.upper
+    assert up.readings[2].position == pytest.approx(2 * math.hypot(0.195, 0.050), abs=1e-6)
+    assert up.readings[2].allowed == pytest.approx(0.400 + 0.020)
+    lo = pr.composite.lower
+    assert max(r.position for r in lo.readings) <= 2 * 0.045 + 1e-9
+    assert [r.allowed for r in lo.readings] == pytest.approx([0.100 + 0.020] * 4)
+    assert pr.conforms
+    js = result_to_json(res)["patterns"]["sensor-holes"]
+    assert js["lower"]["form"] == "composite" and js["conforms"] is True

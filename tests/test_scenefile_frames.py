@@ -288,6 +288,7 @@ def test_example_annotated_documents_the_new_tables():
     s = loads("\n".join(lines), "example-frames.toml")
     assert [d.letter for d in s.datums] == ["B", "C"] and [p.id for p in s.patterns] == ["cover-bolts", "housing-studs"]
     assert len(s.patterns[0].locations) == 4 and len(s.interfaces) == 1
+    assert s.patterns[0].lower == (0.1, ("A",), "composite")
 
 
 HOSTILE = ["1e308", "-1e308", "1e-320", "0", "-0.0", "nan", "inf", "1" + "0" * 400, '"x"', "[]", "{}", "true",

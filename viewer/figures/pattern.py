@@ -67,8 +67,8 @@ def draw_pattern(ax, res: SceneResult, pid: str, way: str = "right", k: float | 
         ax.add_patch(c)
         handles.append((c, f"datum {s.letter} simulator ⌀{u.fmt(s.diameter.value)} (at its MMB)"))
     reach = max(float(np.hypot(*xy)) for xy in p.locations)
-    ax.plot([-1.2 * reach, 1.2 * reach], [0, 0], color=S.PART, lw=0.5, ls="-.")
-    ax.plot([0, 0], [-1.2 * reach, 1.2 * reach], color=S.PART, lw=0.5, ls="-.")
+    ax.axhline(0.0, color=S.PART, lw=0.5, ls="-.")  # the frame's axes through the datum origin
+    ax.axvline(0.0, color=S.PART, lw=0.5, ls="-.")
     for g in pr.gauge.pins:  # the gauge pins, true size
         c = Circle(g.basic, g.diameter.value / 2, fill=False, lw=0.9, ls="--", ec=S.VC)
         ax.add_patch(c)
@@ -104,14 +104,23 @@ def draw_pattern(ax, res: SceneResult, pid: str, way: str = "right", k: float | 
             ax.annotate("", (k * chk.shift[0], k * chk.shift[1]), (0, 0),
                         arrowprops={"arrowstyle": "->", "color": S.TEXT, "lw": 1.0})
     ax.set_aspect("equal")
-    lim = 1.25 * reach
-    ax.set_xlim(-lim, lim)
-    ax.set_ylim(-lim, lim)
+    # the datum origin and every member in view, with a margin of a fifth of the span
+    pts = np.asarray(list(p.locations) + [(0.0, 0.0)], float)
+    lo, hi = pts.min(axis=0), pts.max(axis=0)
+    pad = 0.2 * max(float((hi - lo).max()), 1e-9) + max(pr.gauge.pins[0].diameter.value, k * max(
+        m.allowed.value for m in pr.members))
+    ax.set_xlim(lo[0] - pad, hi[0] + pad)
+    ax.set_ylim(lo[1] - pad, hi[1] + pad)
     ax.tick_params(labelsize=fs * 0.8)
     if chk is None:
         title = f"pattern '{p.id}' at MMC with its gauge"
     elif way == "right":
         title = f"right way: moved as one body\n{'CONFORMS' if chk.conforms else 'DOES NOT CONFORM'}"
+        if pr.composite is not None:  # the second tier's verdict under the first's
+            lo = pr.composite.lower
+            title = (f"upper tier, within the datum shift: {'CONFORMS' if chk.conforms else 'DOES NOT CONFORM'}\n"
+                     f"lower tier ⌀{u.fmt(pr.spec.lower[0])} to {'|'.join(pr.spec.lower[1])}: "
+                     f"{'CONFORMS' if lo.conforms else 'DOES NOT CONFORM'}")
     else:
         title = (f"wrong way: +{u.fmt(chk.added)} on each zone\n"
                  f"{'would pass' if chk.conforms else 'would fail'} (not a verdict)")
@@ -123,7 +132,7 @@ def pattern_figure(res: SceneResult, pid: str, figsize=FIGSIZE, fs: float = 8.0,
     """The pattern's picture alone: one panel (no measured members) or right and wrong way;
     ``pr`` as :func:`draw_pattern` takes it."""
     pr = pr or pattern_result(res, pid)
-    ways = ("right", "wrong") if pr.right is not None else ("right",)
+    ways = ("right", "wrong") if pr.wrong is not None else ("right",)
     with style_context():
         fig = Figure(figsize=figsize, dpi=DPI, facecolor=S.BACKGROUND)
         k = exaggeration_for(pr)

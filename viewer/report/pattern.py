@@ -24,15 +24,28 @@ def pattern_rows(res: SceneResult, pid: str) -> tuple[list[list[str]], list]:
         rows += [[str(m.index + 1), u.fmt(m.basic[0]), u.fmt(m.basic[1]), f"⌀{u.fmt(m.allowed.value)}",
                   f"⌀{u.fmt(g.diameter.value)}"] for m, g in zip(pr.members, pr.gauge.pins)]
         return rows, None
-    rows = [["member", "basic x, y", "size", "position", "allowed", "margin", "shift as bonus: allowed", "margin"]]
+    rows = [["member", "basic x, y", "size", "position", "allowed", "margin"]]
+    if pr.wrong is not None:
+        rows[0] += ["shift as bonus: allowed", "margin"]
+    if pr.composite is not None:
+        rows[0] += ["lower tier: position", "allowed", "margin"]
     cols = [None]
-    for r, w in zip(pr.right.readings, pr.wrong.readings):
-        rows.append([str(r.index + 1) + (" (governs)" if r.index == pr.right.governs else ""),
-                     f"{u.fmt(r.basic[0])}, {u.fmt(r.basic[1])}", u.fmt(r.size), f"⌀{u.fmt(r.position)}",
-                     f"⌀{u.fmt(r.allowed)}", u.fmt(r.margin, signed=True), f"⌀{u.fmt(w.allowed)}",
-                     u.fmt(w.margin, signed=True)])
+    for i, r in enumerate(pr.right.readings):
         ok = S.ROLE_COLOUR["ok" if r.margin >= -1e-12 else "fail"]
-        cols.append([None, None, None, None, None, ok, GREY, GREY])
+        row = [str(r.index + 1) + (" (governs)" if r.index == pr.right.governs else ""),
+               f"{u.fmt(r.basic[0])}, {u.fmt(r.basic[1])}", u.fmt(r.size), f"⌀{u.fmt(r.position)}",
+               f"⌀{u.fmt(r.allowed)}", u.fmt(r.margin, signed=True)]
+        col = [None, None, None, None, None, ok]
+        if pr.wrong is not None:
+            w = pr.wrong.readings[i]
+            row += [f"⌀{u.fmt(w.allowed)}", u.fmt(w.margin, signed=True)]
+            col += [GREY, GREY]
+        if pr.composite is not None:
+            lo = pr.composite.lower.readings[i]
+            row += [f"⌀{u.fmt(lo.position)}", f"⌀{u.fmt(lo.allowed)}", u.fmt(lo.margin, signed=True)]
+            col += [None, None, S.ROLE_COLOUR["ok" if lo.margin >= -1e-12 else "fail"]]
+        rows.append(row)
+        cols.append(col)
     return rows, cols
 
 
@@ -56,8 +69,18 @@ def pattern_words(res: SceneResult, pid: str) -> list[str]:
         out.append(f"Measured: the best fit within the shift{shift} moves the pattern by "
                    f"({u.fmt(c.shift[0])}, {u.fmt(c.shift[1])}) and turns it {c.rotation_deg:.4f} deg; "
                    f"member {c.governs + 1} governs: {'CONFORMS' if c.conforms else 'DOES NOT CONFORM'}.")
+        if pr.composite is not None:
+            t2, datums, form = pr.spec.lower
+            lo = pr.composite.lower
+            g = lo.readings[lo.governs]
+            what = ("feature-relating tier (the zones free to translate, oriented by the repeated datums)"
+                    if form == "composite" else "lower single segment (located by its datums)")
+            out.append(f"The {what}, ⌀{u.fmt(t2)} to {'|'.join(datums)}: member {g.index + 1} reads "
+                       f"⌀{u.fmt(g.position)} against ⌀{u.fmt(g.allowed)}: "
+                       f"{'CONFORMS' if lo.conforms else 'DOES NOT CONFORM'}. Both tiers: "
+                       f"{'CONFORMS' if pr.conforms else 'DOES NOT CONFORM'}.")
         w = pr.wrong
-        if w.conforms != c.conforms:
+        if w is not None and w.conforms != c.conforms:
             out.append("Adding the shift to each member's tolerance (the wrong way) would "
                        f"{'accept' if w.conforms else 'reject'} this pattern: that reading is not a verdict.")
     return out
@@ -90,7 +113,7 @@ def build_pattern_page(res: SceneResult, pid: str, page_no: int, pages: int, fil
                        page_no, pages) as (p, y):
         x0, W = MARGIN, CONTENT_W
         y += 0.1
-        ways = ("right", "wrong") if pr.right is not None else ("right",)
+        ways = ("right", "wrong") if pr.wrong is not None else ("right",)
         k = exaggeration_for(pr)
         h = 3.2
         w = (W - 0.3 * (len(ways) - 1)) / len(ways)
@@ -109,7 +132,8 @@ def build_pattern_page(res: SceneResult, pid: str, page_no: int, pages: int, fil
         p.text(x0, y, cap, fontsize=5.8, color=GREY)
         y += 0.22
         rows, cols = pattern_rows(res, pid)
-        share = [0.9, 1.3, 0.7, 0.8, 0.8, 0.8, 1.5, 0.8] if len(rows[0]) == 8 else [1.0] * len(rows[0])
+        share = {"shift as bonus: allowed": 1.5, "lower tier: position": 1.3, "basic x, y": 1.3, "member": 0.9}
+        share = [share.get(h, 0.8) for h in rows[0]]
         widths = [W * v / sum(share) for v in share]
         y = _table(p, x0, y, widths, rows, 6.3, colours=cols) + 0.1
         y = _paragraphs(p, x0, y, W, 6.5, "WHAT THIS SHOWS", pattern_words(res, pid), "pattern-words")

@@ -93,16 +93,20 @@ def pattern_banner(res, scene, pid: str, states: dict | None = None) -> Banner:
              f"{pr.gauge.pins[0].kind}s ⌀{u.fmt(pr.gauge.pins[0].diameter.value)} (VC) at the basic locations"]
     if pr.right is not None:
         c = pr.right
+        tier = "after the best fit within the datum shift"
+        if pr.composite is not None and pr.composite.governs == "lower":  # the feature-relating tier decides
+            c, tier = pr.composite.lower, f"in the lower tier ⌀{u.fmt(pr.spec.lower[0])} to {'|'.join(pr.spec.lower[1])}"
         g = c.readings[c.governs]
-        role = "ok" if c.conforms else "fail"
-        head = (f"PATTERN {pid} {'CONFORMS' if c.conforms else 'DOES NOT CONFORM'}: member {c.governs + 1} "
-                f"⌀{u.fmt_cmp(g.position, g.allowed)[0]} {'<=' if c.conforms else '>'} ⌀{u.fmt_cmp(g.position, g.allowed)[1]}"
-                " after the best fit within the datum shift")
+        role = "ok" if pr.conforms else "fail"
+        head = (f"PATTERN {pid} {'CONFORMS' if pr.conforms else 'DOES NOT CONFORM'}: member {c.governs + 1} "
+                f"⌀{u.fmt_cmp(g.position, g.allowed)[0]} {'<=' if g.margin >= 0 else '>'} "
+                f"⌀{u.fmt_cmp(g.position, g.allowed)[1]} {tier}")
+        c = pr.right
         if c.datum is not None:
             lines.append(f"datum {pr.pattern.frame.secondary.letter} at {u.fmt(c.datum.size)}: shift available "
                          f"{u.fmt(c.datum.diametral.value)} (radial {u.fmt(c.datum.radial.value)}), used "
                          f"({u.fmt(c.shift[0])}, {u.fmt(c.shift[1])})")
-        if pr.wrong.conforms != c.conforms:
+        if pr.wrong is not None and pr.wrong.conforms != c.conforms:
             lines.append("Adding the datum shift to each member's tolerance (the wrong way) would "
                          f"{'accept' if pr.wrong.conforms else 'reject'} it: the shift moves the pattern as one body.")
     else:

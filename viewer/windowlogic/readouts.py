@@ -130,10 +130,15 @@ def pattern_lines(t: Table, res: SceneResult, units, standard, pid: str, states:
         where = f"({u.fmt(m.basic[0])}, {u.fmt(m.basic[1])})"
         t.add((f"member {m.index + 1} at {where}: gauge {g.kind}", u.fmt(g.diameter.value), g.diameter.formula(u, st)))
     if pr.right is not None:
-        for r, w in zip(pr.right.readings, pr.wrong.readings):
+        for i, r in enumerate(pr.right.readings):
+            wrong = "" if pr.wrong is None else \
+                f"; shift as bonus (the wrong way) would allow {u.fmt(pr.wrong.readings[i].allowed)}"
             t.add((f"member {r.index + 1}: position after the best fit", u.fmt(r.position),
-                   f"allowed {u.fmt(r.allowed)}, margin {u.fmt(r.margin, signed=True)}; shift as bonus "
-                   f"(the wrong way) would allow {u.fmt(w.allowed)}"))
+                   f"allowed {u.fmt(r.allowed)}, margin {u.fmt(r.margin, signed=True)}{wrong}"))
+            if pr.composite is not None:
+                lo = pr.composite.lower.readings[i]
+                t.add((f"member {r.index + 1}: lower tier", u.fmt(lo.position),
+                       f"allowed {u.fmt(lo.allowed)}, margin {u.fmt(lo.margin, signed=True)}"))
     for it in res.frames.interfaces:
         if pid in (it.holes, it.pins):
             for pc in it.mate.pairs:
