@@ -31,7 +31,7 @@ from dataclasses import dataclass
 
 from . import boundaries as B
 from .analysis import Derived, term
-from .model import Characteristic, Feature, Kind, Standard, Units
+from .model import Characteristic, Feature, Kind, Standard
 
 BOUNDARIES = ("RMB", "MMB", "LMB")
 PRECEDENCE = ("primary", "secondary", "tertiary")

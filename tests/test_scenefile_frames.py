@@ -12,7 +12,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from geom import dumps, load, loads
-from geom.model import DatumSpec, InterfaceSpec, PatternSpec
+from geom.model import DatumSpec, InterfaceSpec
 from geom.scenefile import SceneError
 from geom.scenefile_frames import frame_of, pattern_of
 
