@@ -31,7 +31,7 @@ from dataclasses import dataclass
 
 from . import boundaries as B
 from .analysis import Derived, term
-from .model import Characteristic, Feature, Kind, Standard
+from .model import Characteristic, Feature, Kind, Standard, Units  # noqa: F401  (the doctests' units)
 
 BOUNDARIES = ("RMB", "MMB", "LMB")
 PRECEDENCE = ("primary", "secondary", "tertiary")
