@@ -193,6 +193,13 @@ def pattern_at(pr: PatternResult, datum_sizes: dict[str, float] | None) -> Patte
 # ---------------------------------------------------------------- words
 
 
+def _member_lines(chk, u) -> list[str]:
+    """A check's readings, one line per member, the governing one marked."""
+    return [f"    member {r.index + 1}: position {u.fmt(r.position)} / allowed {u.fmt(r.allowed)}, "
+            f"margin {u.fmt(r.margin, signed=True)}" + ("  <- governs" if r.index == chk.governs else "")
+            for r in chk.readings]
+
+
 def frames_text(fr: FramesResult, scene: Scene) -> list[str]:
     """The lines ``matezone analyze`` prints for the datums, patterns and interfaces."""
     u, st = scene.units, scene.standard
@@ -226,10 +233,7 @@ def frames_text(fr: FramesResult, scene: Scene) -> list[str]:
                 ("would pass" if chk.conforms else "would fail")
             out.append(f"  {head}: {word}"
                        f" (shift used ({u.fmt(chk.shift[0])}, {u.fmt(chk.shift[1])}), rotation {chk.rotation_deg:.4f} deg)")
-            for r in chk.readings:
-                mark = "  <- governs" if r.index == chk.governs else ""
-                out.append(f"    member {r.index + 1}: position {u.fmt(r.position)} / allowed {u.fmt(r.allowed)}, "
-                           f"margin {u.fmt(r.margin, signed=True)}{mark}")
+            out += _member_lines(chk, u)
         if pr.composite is not None:
             c = pr.composite
             t2, datums, form = pr.spec.lower
@@ -237,9 +241,7 @@ def frames_text(fr: FramesResult, scene: Scene) -> list[str]:
             out.append(f"  {kind}: ⌀{u.fmt(t2)} to {'|'.join(datums)} "
                        f"({'orienting only, free to translate' if form == 'composite' else 'located by its datums'}): "
                        f"{'CONFORMS' if c.lower.conforms else 'DOES NOT CONFORM'}")
-            for r in c.lower.readings:
-                out.append(f"    member {r.index + 1}: position {u.fmt(r.position)} / allowed {u.fmt(r.allowed)}, "
-                           f"margin {u.fmt(r.margin, signed=True)}")
+            out += _member_lines(c.lower, u)
             out.append(f"  both tiers: {'CONFORMS' if pr.conforms else 'DOES NOT CONFORM'} ({c.governs} tier governs)")
         out.append("")
     for it in fr.interfaces:
