@@ -441,16 +441,19 @@ class SceneResult:
     features: dict[str, FeatureResult]
     mates: tuple[MateResult, ...]
     fasteners: dict[str, FastenerResult]
-    frames: object = None  # geom.frames.FramesResult: datums, patterns, interfaces
+    frames: object = None  # geom.frames.FramesResult of the datums, patterns, interfaces (None: the scene has none)
 
 
 def analyse_scene(scene: Scene) -> SceneResult:
-    from .frames import analyse_frames  # datums and patterns build on this module
-
     feats = {f.id: analyse_feature(f, scene.standard) for f in scene.features}
     mates = tuple(analyse_mate(feats[m.hole], feats[m.pin]) for m in scene.mates)
     fas = {fa.id: analyse_fastener(fa) for fa in scene.fasteners}
-    return SceneResult(scene, feats, mates, fas, analyse_frames(scene))
+    frames = None
+    if scene.datums or scene.patterns or scene.interfaces:  # only then are the datum modules loaded
+        from .frames import analyse_frames  # they build on this module
+
+        frames = analyse_frames(scene)
+    return SceneResult(scene, feats, mates, fas, frames)
 
 
 def mate_formula(m: MateResult, units: Units, standard: Standard) -> str:

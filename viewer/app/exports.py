@@ -30,7 +30,7 @@ from .workers import SweepWorker
 
 SCALES = (1, 2, 3)  # the 3D view's picture: times the widget's pixels
 DPI = 200  # the 2D tab's default resolution (dots per inch of its 8 x 6 in page)
-SWEEP_FILTER = "Animated GIF (*.gif);;MP4 video (*.mp4)"
+SWEEP_FILTER = "Animated GIF (*.gif);;MP4 movie (*.mp4)"
 
 
 class PictureDialog(QDialog):
