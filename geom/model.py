@@ -274,6 +274,9 @@ class Scene:
     datums: tuple[DatumSpec, ...] = ()  # the frame beyond A (B, C), in precedence order
     patterns: tuple[PatternSpec, ...] = ()
     interfaces: tuple[InterfaceSpec, ...] = ()
+    # the statistical fit's inputs (``[[process]]`` and ``[yield]`` tables): a
+    # ``geom.yieldspec.StatSpec`` (defined there, so plain scenes load nothing more), or None
+    statistics: "object | None" = None
 
     def feature(self, fid: str) -> Feature:
         for f in self.features:

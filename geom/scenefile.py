@@ -39,7 +39,8 @@ from .model import (
     datum_problem,
 )
 
-TOP_KEYS = ("title", "units", "standard", "feature", "mate", "fastener", "datum", "pattern", "interface", "report")
+TOP_KEYS = ("title", "units", "standard", "feature", "mate", "fastener", "datum", "pattern", "interface", "report",
+            "process", "yield")
 FEATURE_KEYS = ("id", "kind", "limits", "length", "at", "name", "envelope", "tolerance", "measured")
 TOLERANCE_KEYS = ("characteristic", "zone", "value", "material", "datums", "projected", "angle")
 MEASURED_KEYS = ("size", "related_size", "axis_deviation", "axis_bottom", "axis_top", "local_sizes",
@@ -389,6 +390,10 @@ def parse(data: dict, file: str = "<scene>", source: str | None = None) -> Scene
         from .scenefile_frames import parse_frames  # the [[datum]], [[pattern]], [[interface]] tables
 
         scene = parse_frames(c, data, scene)
+    if any(k in data for k in ("process", "yield")):
+        from .scenefile_stats import parse_stats  # the [[process]] and [yield] tables
+
+        scene = parse_stats(c, data, scene)
     return scene
 
 
@@ -473,6 +478,10 @@ def dumps(scene: Scene) -> str:
         from .scenefile_frames import dump_frames
 
         out += dump_frames(scene)
+    if scene.statistics is not None:
+        from .scenefile_stats import dump_stats
+
+        out += dump_stats(scene)
     if scene.report:
         out += ["", "[report]"] + [f"{k} = {v if k in COUNT_KEYS and v.isdigit() else _v(v)}"
                                    for k, v in scene.report]
