@@ -248,6 +248,10 @@ class PatternSpec:
     datum_sizes: tuple[tuple[str, float], ...] = ()
     # a composite position's lower tier (or the lower of two single segments): (value, datums, form)
     lower: tuple[float, tuple[str, ...], str] | None = None
+    # CMM points per member (CSV paths relative to the scene file, in member order), and of the
+    # datum features of size (letter, CSV path): the measured members are then computed from them
+    points: tuple[str, ...] = ()
+    datum_points: tuple[tuple[str, str], ...] = ()
 
 
 @dataclass(frozen=True)
