@@ -1,4 +1,4 @@
-"""Command line: ``matezone analyze|report|inspect|view``.
+"""Command line: ``matezone analyze|report|inspect|yield|view``.
 
 Thin on purpose: ``analyze`` imports only :mod:`geom` (no VTK, no Qt, no matplotlib); the
 heavy layers are imported inside the commands that need them.
@@ -83,6 +83,12 @@ def cmd_view(args) -> int:
     return run(args, _load)
 
 
+def cmd_yield(args) -> int:
+    from matezone.cmd_yield import run
+
+    return run(args, _load)
+
+
 def build_parser() -> argparse.ArgumentParser:
     p = argparse.ArgumentParser(
         prog="matezone",
@@ -120,6 +126,13 @@ def build_parser() -> argparse.ArgumentParser:
     i.add_argument("--bonus-basis", choices=["unrelated", "related"], default="unrelated",
                    help="envelope the bonus is taken from (default: unrelated, ASME Y14.5-2009 and later)")
     i.set_defaults(func=cmd_inspect)
+
+    y = sub.add_parser("yield", help="statistical fit: Monte Carlo of every mate and interface, P(interference)")
+    y.add_argument("scene", help="scene file (.toml)")
+    y.add_argument("--samples", type=int, help="assemblies per run (default: the scene's [yield] samples, or 100000)")
+    y.add_argument("--seed", type=int, help="random seed (default: the scene's [yield] seed, or 1)")
+    y.add_argument("--json", action="store_true", help="print one JSON object")
+    y.set_defaults(func=cmd_yield)
 
     v = sub.add_parser("view", help="open the desktop viewer")
     v.add_argument("scene", nargs="?", help="scene file (.toml); default: the demo scene")
