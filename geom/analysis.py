@@ -142,6 +142,9 @@ class FeatureResult:
     # hole with a projected zone: its IB/OB apply within the projected height; this is the
     # boundary over the hole's own length, the one a mating pin meets
     in_hole_boundary: "Derived | None" = None
+    # only where the feature has refinements: the main tolerance and each refinement with its own
+    # boundaries (geom.refinement.ControlResult), set by analyse_scene
+    controls: tuple = ()
 
 
 def _none(key: str, note: str) -> Derived:
@@ -446,6 +449,10 @@ class SceneResult:
 
 def analyse_scene(scene: Scene) -> SceneResult:
     feats = {f.id: analyse_feature(f, scene.standard) for f in scene.features}
+    if any(f.refinements for f in scene.features):  # only then is the refinement module loaded
+        from .refinement import with_controls
+
+        feats = with_controls(feats, scene.standard, scene.units)
     mates = tuple(analyse_mate(feats[m.hole], feats[m.pin]) for m in scene.mates)
     fas = {fa.id: analyse_fastener(fa) for fa in scene.fasteners}
     frames = None

@@ -92,6 +92,8 @@ class PatternResult:
     right: object | None = None  # PatternCheck of the measured members (best fit within the shift)
     wrong: object | None = None  # the same with the shift added to each member (for teaching)
     composite: object | None = None  # geom.composite.CompositeCheck where the pattern has a lower tier
+    points: object | None = None  # geom.patternpoints.PointsFit where the members come from CMM points
+    points_error: str | None = None  # why the points could not be used (names the file)
 
     @property
     def conforms(self) -> bool | None:
@@ -142,10 +144,17 @@ def analyse_frames(scene: Scene) -> FramesResult:
         p = pattern_of(scene, spec)
         by_id[spec.id] = p
         mem = members(p, [p.feature.mmc] * p.count)
-        right = wrong = comp = None
+        right = wrong = comp = pts = err = None
         if spec.measured:
             right, wrong, comp = _judged(p, spec, tuple(sorted(spec.datum_sizes)))
-        pats.append(PatternResult(spec, p, mem, gauge(p), right, wrong, comp))
+        elif spec.points:
+            from .patternpoints import judged_from_points
+
+            try:
+                right, wrong, pts = judged_from_points(scene, spec, p, _shifts(p))
+            except ValueError as e:  # PatternPointsError and sizes beyond the limits: a message
+                err = f"pattern {spec.id!r}: {e}"
+        pats.append(PatternResult(spec, p, mem, gauge(p), right, wrong, comp, pts, err))
     inter = tuple(InterfaceResult(i.holes, i.pins, mate_patterns(by_id[i.holes], by_id[i.pins], i.fastener))
                   for i in scene.interfaces)
     return FramesResult(datums, tuple(pats), inter)
@@ -180,7 +189,7 @@ def pattern_at(pr: PatternResult, datum_sizes: dict[str, float] | None) -> Patte
     ``datum_sizes`` (letter -> size) in place of the scene's (a what-if of the datum feature's
     size: the shift it allows changes, the members' own zones do not); ``pr`` itself when the
     pattern was not measured or nothing differs. Remembered: a slider going back is free."""
-    if pr.right is None or not datum_sizes:
+    if pr.right is None or not datum_sizes or pr.points is not None:
         return pr
     sizes = dict(pr.spec.datum_sizes)
     sizes.update({k: float(v) for k, v in datum_sizes.items()})
@@ -224,6 +233,10 @@ def frames_text(fr: FramesResult, scene: Scene) -> list[str]:
         for s in pr.gauge.simulators:
             if s.diameter is not None:
                 out.append(f"  datum {s.letter} simulator: {s.kind} {s.diameter.formula(u, st)}")
+        if pr.points_error is not None:
+            out.append(f"  measured points not used: {pr.points_error}")
+        if pr.points is not None:
+            out += _points_lines(pr, u)
         for chk in (pr.right, pr.wrong):
             if chk is None:
                 continue
@@ -256,6 +269,22 @@ def frames_text(fr: FramesResult, scene: Scene) -> list[str]:
             out.append(f"  pilots: {m.pilot.formula(u, st)}")
         out += [f"  assumes {a}" for a in m.assumptions]
         out.append("")
+    return out
+
+
+def _points_lines(pr, u) -> list[str]:
+    pf = pr.points
+    out = ["  from CMM points (each member's unrelated actual mating envelope; its axis judged at both ends):"]
+    for lt, f in pf.datums:
+        out.append(f"    datum {lt}: {f.file}: related actual mating envelope {u.fmt(f.diameter)}, axis at A "
+                   f"({u.fmt(f.bottom[0])}, {u.fmt(f.bottom[1])})")
+    for m in pf.members:
+        f = m.fit
+        mark = "  <- governs" if m.index == pr.right.governs else ""
+        out.append(f"    member {m.index + 1}: {f.file}: size {u.fmt(f.diameter)}, axis bottom "
+                   f"({u.fmt(f.bottom[0])}, {u.fmt(f.bottom[1])}), top ({u.fmt(f.top[0])}, {u.fmt(f.top[1])}), "
+                   f"reading {u.fmt(m.reading)} at the {m.governing_end}{mark}")
+    out += [f"    assumes {a}" for a in pf.assumptions]
     return out
 
 
@@ -295,6 +324,17 @@ def frames_to_json(fr: FramesResult, scene: Scene) -> dict:
                     "members": [{"position": _r(r.position), "allowed": _r(r.allowed), "margin": _r(r.margin)}
                                 for r in chk.readings],
                 }
+        if pr.points_error is not None:
+            entry["points_error"] = pr.points_error
+        if pr.points is not None:
+            pf = pr.points
+            entry["from_points"] = {
+                "origin": [_r(v) for v in pf.origin], "assumptions": list(pf.assumptions),
+                "datums": {lt: {"file": f.file, "size": _r(f.diameter), "axis": [_r(v) for v in f.bottom]}
+                           for lt, f in pf.datums},
+                "members": [{"file": m.fit.file, "size": _r(m.fit.diameter),
+                             "axis_bottom": [_r(v) for v in m.fit.bottom], "axis_top": [_r(v) for v in m.fit.top],
+                             "reading": _r(m.reading), "governing_end": m.governing_end} for m in pf.members]}
         if pr.composite is not None:
             t2, datums, form = pr.spec.lower
             lo = pr.composite.lower

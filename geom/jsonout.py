@@ -50,6 +50,10 @@ def result_to_json(res: SceneResult) -> dict:
             },
             "notes": list(r.notes),
         }
+        if r.controls:  # only a feature with refinements has the key (geom.refinement)
+            from .refinement import controls_json
+
+            out["features"][fid]["controls"] = controls_json(r, sc.units, sc.standard)
     out["mates"] = [
         {
             "hole": m.hole,

@@ -177,6 +177,9 @@ class Feature:
     envelope: bool | None = None  # None: the standard's default (ASME yes, ISO no)
     measured: Measured | None = None
     name: str = ""  # free text shown on pictures
+    # tighter controls on the same feature beside ``tolerance`` (e.g. a perpendicularity to A
+    # refining a position to A|B|C): see :mod:`geom.refinement`
+    refinements: tuple[Tolerance, ...] = ()
 
     @property
     def mmc(self) -> float:

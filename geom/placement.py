@@ -41,6 +41,23 @@ class AxisPlacement:
     tilt_deg: float  # angle of the axis to the zone axis (0 for a bowed axis)
     bowed: bool  # straightness: the axis bends instead of tilting
     width_zone: bool
+    # an orientation refinement of a position (geom.refinement): its tolerance allowed at the
+    # produced size (the nested zone's size) and the (x, y) of its floating zone's axis; None without
+    refined_zone: float | None = None
+    refined_centre: tuple[float, float] | None = None
+
+
+def orientation_refinement(feature: Feature):
+    """The orientation refinement (perpendicularity) of a position tolerance, or None: the one
+    control that limits the axis' tilt inside the position zone."""
+    tol = feature.tolerance
+    if tol is None or tol.characteristic is not Characteristic.POSITION:
+        return None
+    for r in feature.refinements:
+        if r.characteristic in (Characteristic.PERPENDICULARITY, Characteristic.PARALLELISM,
+                                Characteristic.ANGULARITY):
+            return r
+    return None
 
 
 def worst_case_axis(feature: Feature, state: FeatureState, samples: int = 2) -> AxisPlacement:
@@ -49,6 +66,14 @@ def worst_case_axis(feature: Feature, state: FeatureState, samples: int = 2) -> 
     ``state.share`` scales how much of the allowed tolerance the axis uses; ``direction_deg``
     turns the tilt on A (a width zone only allows tilt across its planes, along x).
     Straightness gives a circular-arc axis: ends on one side of the zone, middle on the other.
+
+    A position refined by an orientation (perpendicularity to A): the axis may still shift to the
+    edge of the position zone, but its tilt over the zone's length is limited to the share of the
+    refinement's tolerance allowed at the size. The axis is drawn offset and tilted by that much,
+    touching the position zone's edge at the far end; the nested orientation zone floats on it
+    (``refined_zone``, ``refined_centre``). The mate's worst-case clearance is still the position
+    VC's (:func:`geom.analysis.analyse_mate`): the refinement does not change the VC seen by a
+    mating part located at true position.
     """
     tol = feature.tolerance
     zone = tolerance_allowed(feature, state.size)
@@ -63,6 +88,7 @@ def worst_case_axis(feature: Feature, state: FeatureState, samples: int = 2) -> 
         z0, z1 = -tol.projected, 0.0
     else:
         z0, z1 = 0.0, L
+    ref = None
     if bowed:
         n = max(samples, 33)
         z = np.linspace(0.0, L, n)
@@ -73,7 +99,17 @@ def worst_case_axis(feature: Feature, state: FeatureState, samples: int = 2) -> 
     else:
         n = max(samples, 2)
         z = np.linspace(min(z0, 0.0), max(z1, L), n)
-        lateral = -off / 2 + off * (z - z0) / (z1 - z0)
-        tilt = math.degrees(math.atan2(off, z1 - z0))
+        ref = orientation_refinement(feature)
+        span, t_ref = off, None  # how far the axis moves across over the zone's length
+        if ref is not None:
+            t_ref = tolerance_allowed(feature.with_(tolerance=ref, refinements=()), state.size)
+            span = min(off, max(0.0, min(1.0, state.share)) * t_ref)
+        lateral = off / 2 - span + span * (z - z0) / (z1 - z0)
+        tilt = math.degrees(math.atan2(span, z1 - z0))
     pts = np.column_stack((cx + lateral * u[0], cy + lateral * u[1], z))
-    return AxisPlacement(zone, (z0, z1), (cx, cy), (float(u[0]), float(u[1])), pts, off, tilt, bowed, width)
+    refined = None
+    if not bowed and ref is not None:  # the nested zone's axis: the middle of the axis' sideways run
+        m = off / 2 - span / 2
+        refined = (t_ref, (float(cx + m * u[0]), float(cy + m * u[1])))
+    return AxisPlacement(zone, (z0, z1), (cx, cy), (float(u[0]), float(u[1])), pts, off, tilt, bowed, width,
+                         *(refined or (None, None)))

@@ -70,6 +70,7 @@ def feature_heading(r: FeatureResult, units: Units) -> str:
     f = r.feature
     lim = f"{units.fmt(f.limits[0])} - {units.fmt(f.limits[1])} {units.value}"
     tol = f.tolerance.symbol(units) if f.tolerance else "no geometric tolerance"
+    tol += "".join(f", refined by {t.symbol(units)}" for t in f.refinements)
     env = "envelope applies" if r.envelope else "no envelope"
     return f"{f.kind.value} '{f.id}'{' (' + f.name + ')' if f.name else ''}: size {lim}, length {units.fmt(f.length)}, {tol}; {env}"
 
@@ -96,6 +97,10 @@ def render_text(res: SceneResult) -> str:
     for r in res.features.values():
         out.append(feature_heading(r, u))
         out += _table(feature_rows(r, u, st))
+        if r.controls:  # several controls on the feature (geom.refinement)
+            from .refinement import controls_text
+
+            out += controls_text(r, u, st)
         out += [f"  note: {n}" for n in r.notes]
         out.append("")
     for m in res.mates:

@@ -41,7 +41,7 @@ from .model import (
 
 TOP_KEYS = ("title", "units", "standard", "feature", "mate", "fastener", "datum", "pattern", "interface", "report",
             "process", "yield")
-FEATURE_KEYS = ("id", "kind", "limits", "length", "at", "name", "envelope", "tolerance", "measured")
+FEATURE_KEYS = ("id", "kind", "limits", "length", "at", "name", "envelope", "tolerance", "measured", "refinement")
 TOLERANCE_KEYS = ("characteristic", "zone", "value", "material", "datums", "projected", "angle")
 MEASURED_KEYS = ("size", "related_size", "axis_deviation", "axis_bottom", "axis_top", "local_sizes",
                  "uncertainty", "points")
@@ -159,8 +159,7 @@ def _show(v: Any) -> str:
 
 def _tolerance(c: _Ctx, v, path) -> Tolerance:
     c.table(v, path, TOLERANCE_KEYS, required=("characteristic", "value"))
-    ch = Characteristic(c.string(v["characteristic"], _join(path, "characteristic"),
-                                 [x.value for x in Characteristic]))
+    ch = Characteristic(c.string(v["characteristic"], _join(path, "characteristic"), [x.value for x in Characteristic]))
     zone = Zone(c.string(v.get("zone", "diameter"), _join(path, "zone"), [x.value for x in Zone]))
     mat = Material(c.string(v.get("material", "RFS"), _join(path, "material"), [x.value for x in Material]))
     value = c.number(v["value"], _join(path, "value"), nonneg=True)
@@ -172,18 +171,15 @@ def _tolerance(c: _Ctx, v, path) -> Tolerance:
         c.fail(_join(path, "datums"), f"expected a list of datum letters such as [\"A\"], got {_show(datums)}")
     if len(set(datums)) != len(datums):
         c.fail(_join(path, "datums"), "expected each datum once, got a repeated letter")
-    if ch is Characteristic.STRAIGHTNESS and datums:
-        c.fail(_join(path, "datums"), "expected no datums: straightness is a form tolerance and takes none")
-    if ch is not Characteristic.STRAIGHTNESS and not datums:
-        c.fail(_join(path, "datums"), f"expected at least one datum ({ch.value} is related to datum A)")
+    if (ch is Characteristic.STRAIGHTNESS) == bool(datums):  # straightness takes none, the others some
+        c.fail(_join(path, "datums"), "expected no datums: straightness is a form tolerance and takes none" if datums
+               else f"expected at least one datum ({ch.value} is related to datum A)")
     if datums and datums[0] != "A":
         c.fail(_join(path, "datums"), f"expected datum A first (matezone's frame takes A as the primary "
                                       f"datum plane, z = 0), got {datums!r}")
-    projected = None
-    if "projected" in v:
-        projected = c.number(v["projected"], _join(path, "projected"), positive=True)
-        if ch is Characteristic.STRAIGHTNESS:
-            c.fail(_join(path, "projected"), "expected no projected zone on a straightness tolerance")
+    projected = c.number(v["projected"], _join(path, "projected"), positive=True) if "projected" in v else None
+    if projected is not None and ch is Characteristic.STRAIGHTNESS:
+        c.fail(_join(path, "projected"), "expected no projected zone on a straightness tolerance")
     angle = None
     if ch is Characteristic.ANGULARITY:
         if "angle" not in v:
@@ -194,8 +190,7 @@ def _tolerance(c: _Ctx, v, path) -> Tolerance:
     elif "angle" in v:
         c.fail(_join(path, "angle"), f"expected no angle: only angularity takes a basic angle, this is {ch.value}")
     tol = Tolerance(ch, value, zone, mat, tuple(datums), projected, angle)
-    why = datum_problem(tol)
-    if why:
+    if why := datum_problem(tol):
         c.fail(_join(path, "datums"), "expected datums that fix the zone: " + why)
     return tol
 
@@ -203,11 +198,9 @@ def _tolerance(c: _Ctx, v, path) -> Tolerance:
 def _measured(c: _Ctx, v, path) -> Measured:
     c.table(v, path, MEASURED_KEYS)
     kw: dict[str, Any] = {}
-    for k in ("size", "related_size", "uncertainty"):
+    for k in ("size", "related_size", "uncertainty", "axis_deviation"):
         if k in v:
-            kw[k] = c.number(v[k], _join(path, k), positive=(k != "uncertainty"), nonneg=True)
-    if "axis_deviation" in v:
-        kw["axis_deviation"] = c.number(v["axis_deviation"], _join(path, "axis_deviation"), nonneg=True)
+            kw[k] = c.number(v[k], _join(path, k), positive=k in ("size", "related_size"), nonneg=True)
     for k in ("axis_bottom", "axis_top"):
         if k in v:
             kw[k] = c.pair(v[k], _join(path, k), "a list of two coordinates [x, y]")
@@ -255,12 +248,14 @@ def _feature(c: _Ctx, v, i: int) -> Feature:
     if tol is not None:
         from .boundaries import worst_case_boundaries
 
-        smallest = min(b for b in worst_case_boundaries(feat) if b is not None) if any(
-            b is not None for b in worst_case_boundaries(feat)) else lo
-        if smallest <= 0:
-            c.fail(_join(path, "tolerance.value"),
-                   f"expected a tolerance that leaves a boundary > 0; with {tol.value:g} the smallest "
-                   f"worst-case boundary is {smallest:g}")
+        sizes = [b for b in worst_case_boundaries(feat) if b is not None]
+        if sizes and min(sizes) <= 0:
+            c.fail(_join(path, "tolerance.value"), f"expected a tolerance that leaves a boundary > 0; with "
+                                                   f"{tol.value:g} the smallest worst-case boundary is {min(sizes):g}")
+    if "refinement" in v:  # tighter controls on the same feature (geom.refinement)
+        from .refinement import parse_refinements
+
+        feat = feat.with_(refinements=parse_refinements(c, v["refinement"], path, feat))
     return feat
 
 
@@ -449,15 +444,12 @@ def dumps(scene: Scene) -> str:
                 f"at = {_v(list(f.at))}"]
         if f.envelope is not None:
             out.append(f"envelope = {_v(f.envelope)}")
-        t = f.tolerance
-        if t is not None:
-            out += ["[feature.tolerance]", f"characteristic = {_v(t.characteristic.value)}",
-                    f"zone = {_v(t.zone.value)}", f"value = {_v(t.value)}", f"material = {_v(t.material.value)}",
-                    f"datums = {_v(list(t.datums))}"]
-            if t.projected is not None:
-                out.append(f"projected = {_v(t.projected)}")
-            if t.angle is not None:
-                out.append(f"angle = {_v(t.angle)}")
+        tols = [("[feature.tolerance]", f.tolerance)] * (f.tolerance is not None)
+        for head, t in tols + [("[[feature.refinement]]", r) for r in f.refinements]:
+            out += [head, f"characteristic = {_v(t.characteristic.value)}", f"zone = {_v(t.zone.value)}",
+                           f"value = {_v(t.value)}", f"material = {_v(t.material.value)}",
+                           f"datums = {_v(list(t.datums))}"]
+            out += [f"{k} = {_v(getattr(t, k))}" for k in ("projected", "angle") if getattr(t, k) is not None]
         m = f.measured
         if m is not None:
             out.append("[feature.measured]")

@@ -54,7 +54,8 @@ from .model import Characteristic, DatumSpec, InterfaceSpec, Kind, PatternSpec, 
 from .scenefile import MAX_ID, SceneError, _Ctx, _join, _show, _v
 
 DATUM_KEYS = ("letter", "feature", "boundary")
-PATTERN_KEYS = ("id", "feature", "locations", "bolt_circle", "requirement", "measured", "datum_sizes", "lower")
+PATTERN_KEYS = ("id", "feature", "locations", "bolt_circle", "requirement", "measured", "datum_sizes", "lower",
+                "points", "datum_points")
 LOWER_KEYS = ("value", "datums", "form")
 LOWER_FORMS = ("composite", "two_segment")  # geom.composite.FORMS
 BOLT_CIRCLE_KEYS = ("count", "diameter", "start")
@@ -210,7 +211,56 @@ def _pattern(c: _Ctx, v, i: int, scene: Scene, by_id: dict) -> PatternSpec:
             c.fail(_join(path, "datum_sizes"), f"missing {', '.join(need)}: with measured members, a datum "
                                                f"feature at MMB or LMB needs its produced size")
     lower = _lower(c, v["lower"], _join(path, "lower"), pat) if "lower" in v else None
-    return PatternSpec(pid, fid, locs, req, meas, tuple(sizes), lower)
+    pts, dpts = _point_files(c, v, path, pat, len(locs), sizes)
+    if pts and lower is not None:
+        c.fail(_join(path, "lower"), "expected no lower tier with points: a lower tier is judged on typed "
+                                     "measured members only")
+    return PatternSpec(pid, fid, locs, req, meas, tuple(sizes), lower, pts, dpts)
+
+
+def _csv(c: _Ctx, v, path: str) -> str:
+    f = c.string(v, path, what="a points CSV file name (relative to the scene file)", max_len=4096)
+    if not f.strip():
+        c.fail(path, "expected a points CSV file name, got an empty string")
+    return f
+
+
+def _point_files(c: _Ctx, v: dict, path: str, pat, count: int, sizes) -> tuple[tuple[str, ...], tuple]:
+    """``points = ["h1.csv", ...]`` (one per member) and ``datum_points = { B = "pilot.csv" }``."""
+    pts: tuple[str, ...] = ()
+    if "points" in v:
+        pp = _join(path, "points")
+        if "measured" in v:
+            c.fail(pp, "expected either measured (typed x, y, size) or points (CSV files), not both")
+        pv = v["points"]
+        if not isinstance(pv, list) or len(pv) != count:
+            c.fail(pp, f"expected one points CSV file per member ({count}), in member order, got {_show(pv)}")
+        pts = tuple(_csv(c, f, f"{pp}[{k}]") for k, f in enumerate(pv))
+    dpts = []
+    if "datum_points" in v:
+        dp = _join(path, "datum_points")
+        dv = v["datum_points"]
+        if not isinstance(dv, dict):
+            c.fail(dp, f"expected a table of datum letter = points CSV, e.g. {{ B = \"pilot.csv\" }}, got {_show(dv)}")
+        if not pts:
+            c.fail(dp, "expected datum_points only with points (one CSV per member)")
+        given = {k for k, _ in sizes}
+        for letter, f in dv.items():
+            lp = _join(dp, letter)
+            if letter not in pat.frame.letters or pat.frame.ref(letter).is_plane:
+                sized = [r.letter for r in pat.frame.refs if not r.is_plane]
+                c.fail(lp, f"expected a datum feature of size of the frame {'|'.join(pat.frame.letters)} "
+                           f"({', '.join(sized) or 'none'})")
+            if letter in given:
+                c.fail(lp, f"expected either datum_sizes.{letter} or datum_points.{letter}, not both")
+            dpts.append((letter, _csv(c, f, lp)))
+    if pts:
+        have = {k for k, _ in sizes} | {k for k, _ in dpts}
+        need = [r.letter for r in pat.frame.refs if not r.is_plane and r.boundary != "RMB" and r.letter not in have]
+        if need:
+            c.fail(_join(path, "datum_points"), f"missing {', '.join(need)}: with points, a datum feature at MMB "
+                                                f"or LMB needs its points (datum_points) or its size (datum_sizes)")
+    return pts, tuple(dpts)
 
 
 def _lower(c: _Ctx, v, path: str, pat) -> tuple[float, tuple[str, ...], str]:
@@ -314,6 +364,10 @@ def dump_frames(scene: Scene) -> list[str]:
             out.append(f"measured = {_v([list(r) for r in p.measured])}")
         if p.datum_sizes:
             out.append("datum_sizes = { " + ", ".join(f"{_key(k)} = {_v(float(s))}" for k, s in p.datum_sizes) + " }")
+        if p.points:
+            out.append(f"points = {_v(list(p.points))}")
+        if p.datum_points:
+            out.append("datum_points = { " + ", ".join(f"{_key(k)} = {_v(f)}" for k, f in p.datum_points) + " }")
         if p.lower is not None:
             t2, ds, form = p.lower
             out.append(f"lower = {{ value = {_v(t2)}, datums = {_v(list(ds))}, form = {_v(form)} }}")

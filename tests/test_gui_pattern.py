@@ -82,3 +82,23 @@ def test_worst_case_puts_the_datum_feature_at_its_mmc(qtbot):
         assert m.states["cover-pilot"].size == pytest.approx(52.000)  # the bore's MMC: the worst case
     finally:
         _close(win)
+
+
+def test_the_pattern_in_focus_fills_the_3d_view_with_both_parts(qtbot):
+    """A pattern that takes part in an interface shows both parts in 3D (no "no 3D picture"
+    message); the datum-size what-if redraws the pilot bore at the new size."""
+    win = _open(qtbot, PUMP)
+    try:
+        m, v = win.model, win.view3d
+        assert m.focus == ("pattern", "cover-bolts")
+        qtbot.waitUntil(lambda: v.current is not None, timeout=20_000)
+        assert v.current.kind == "interface"
+        assert sum(len(a) for a in v.actors.values()) > 0
+        assert "no 3D picture" not in v.caption.text()
+        before = v.current.find("part", "part 1").mesh
+        with qtbot.waitSignal(m.statesChanged, timeout=10_000):
+            win.whatif.groups["cover-pilot"].size.spin.setValue(52.030)
+        qtbot.waitUntil(lambda: v.current.find("part", "part 1").mesh is not before, timeout=20_000)
+        assert v.current.kind == "interface" and "no 3D picture" not in v.caption.text()
+    finally:
+        _close(win)

@@ -73,3 +73,35 @@ def test_the_report_puts_the_pattern_page_first(tmp_path, res):
 def test_a_pattern_without_measured_members_has_one_panel(res):
     fig = pattern_figure(res, "housing-studs")
     assert len(fig.axes) == 1
+
+
+SENSOR = Path(__file__).resolve().parents[1] / "scenes" / "sensor_plate_composite.toml"
+
+
+def test_the_lower_tier_is_drawn_where_its_fit_puts_it():
+    """The composite's feature-relating tier: one zone per member, k x (t2 + bonus) wide, centred
+    where the free fit carries each basic location back (fitted = R measured + d: geometry, no
+    source); t2 + bonus at 6.620 = 0.100 + 0.020 (ASME Y14.5 bonus, from memory; scene file)."""
+    from matplotlib.figure import Figure
+
+    from viewer.figures.pattern import lower_zone_centres
+
+    r2 = analyse_scene(load(SENSOR))
+    pr = pattern_result(r2, "sensor-holes")
+    ax = Figure().add_subplot()
+    k, handles = draw_pattern(ax, r2, "sensor-holes", "right")
+    low = [c for c in ax.patches if c.get_gid() == "lower-tier zone"]
+    assert len(low) == 4
+    assert [c.radius for c in low] == pytest.approx([k * (0.100 + 0.020) / 2] * 4, abs=1e-9)
+    lo = pr.composite.lower
+    for c, r, b in zip(low, lo.readings, pr.pattern.locations):
+        # the zone centre z satisfies R(theta) z + d = b (the fit's transform inverted here)
+        th = math.radians(r.rotation_deg)
+        zx, zy = b[0] + (c.center[0] - b[0]) / k, b[1] + (c.center[1] - b[1]) / k
+        fx = math.cos(th) * zx - math.sin(th) * zy + r.shift[0]
+        fy = math.sin(th) * zx + math.cos(th) * zy + r.shift[1]
+        assert (fx, fy) == pytest.approx(b, abs=1e-9)
+    assert lower_zone_centres(pr)[0] != pytest.approx(pr.pattern.locations[0], abs=1e-6)  # the whole pattern is off
+    texts = [t for _a, t in handles]
+    assert any(t.startswith("pattern-locating ⌀0.400 | A | B | C") for t in texts)
+    assert any(t.startswith("feature-relating ⌀0.100 | A") for t in texts)

@@ -177,6 +177,11 @@ class View3D(QWidget):
         m = self.model
         kind, key = m.focus
         s = self.scene3d_mod
+        if kind == "pattern":  # both parts of the interface the pattern takes part in
+            from viewer.scene3d.interface import build_interface_scene, interfaces_of
+
+            sizes = {fid: st.size for fid, st in m.states.items()}
+            return build_interface_scene(m.result, interfaces_of(m.result, key)[0], datum_sizes=sizes)
         if kind not in ("mate", "feature", "inspection"):
             return None  # a fastener (or nothing): no 3D picture
         if kind == "inspection":
@@ -186,13 +191,22 @@ class View3D(QWidget):
             return s.build_mate_scene(m.result, key, states=dict(m.states))
         return s.build_feature_scene(m.result, key, state=m.states[key])
 
+    def _has_picture(self) -> bool:
+        """Does the focus have a 3D picture (a pattern: only where it takes part in an interface)?"""
+        kind, key = self.model.focus
+        if kind == "pattern":
+            from viewer.scene3d.interface import interfaces_of
+
+            return bool(interfaces_of(self.model.result, key))
+        return kind in ("mate", "feature", "inspection")
+
     def update_now(self) -> None:
         self._pending = False
         self._timer.stop()  # a rebuild asked for before this one is served by it
         if self.closed:
             return
         t0 = time.perf_counter()
-        if self.model.focus[0] not in ("mate", "feature", "inspection"):
+        if not self._has_picture():
             self.show_nothing()
             return
         try:  # a scene that cannot be built: the last picture stays

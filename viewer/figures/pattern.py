@@ -92,9 +92,16 @@ def draw_pattern(ax, res: SceneResult, pid: str, way: str = "right", k: float | 
                     ha="center", va="top", fontsize=fs * 0.85, color=col)
         else:
             ax.text(bx, by - k * allowed / 2 - 0.02 * reach, f"{i + 1}", ha="center", va="top", fontsize=fs * 0.85)
-    handles.append((Circle((0, 0), 1, fc=S.ZONE, alpha=0.35, ec=S.ZONE),
-                    f"zone at each basic location, x{k:g}" + (" (t + bonus + shift)" if way == "wrong" and chk else
-                                                               " (t + bonus)")))
+    tiers = pr.composite is not None and way == "right" and chk is not None
+    up_words = f"zone at each basic location, x{k:g}" + (" (t + bonus + shift)" if way == "wrong" and chk else
+                                                          " (t + bonus)")
+    if tiers:
+        form = pr.spec.lower[2]
+        up_words = (f"{'pattern-locating' if form == 'composite' else 'upper segment'} "
+                    f"⌀{u.fmt(p.feature.tolerance.value)} | {' | '.join(p.frame.letters)}: " + up_words)
+    handles.append((Circle((0, 0), 1, fc=S.ZONE, alpha=0.35, ec=S.ZONE), up_words))
+    if tiers:
+        handles.append(_lower_tier(ax, pr, k, u))
     if chk is not None and way == "right" and chk.datum is not None:
         rad = chk.datum.radial.value
         env = Circle((0, 0), k * rad, fill=False, ec=S.TEXT, lw=0.9, ls=":")
@@ -126,6 +133,33 @@ def draw_pattern(ax, res: SceneResult, pid: str, way: str = "right", k: float | 
                  f"{'would pass' if chk.conforms else 'would fail'} (not a verdict)")
     ax.set_title(title, fontsize=fs, loc="left", pad=3)
     return k, handles
+
+
+def lower_zone_centres(pr) -> list[tuple[float, float]]:
+    """Where the lower tier's best fit puts its zones, in the measured coordinates: the basic
+    locations carried back through the fit (fitted = R(theta) measured + d, so a zone at basic b
+    sits at R(-theta) (b - d))."""
+    lo = pr.composite.lower
+    out = []
+    for r in lo.readings:
+        th = -math.radians(r.rotation_deg)
+        x, y = r.basic[0] - r.shift[0], r.basic[1] - r.shift[1]
+        out.append((math.cos(th) * x - math.sin(th) * y, math.sin(th) * x + math.cos(th) * y))
+    return out
+
+
+def _lower_tier(ax, pr, k: float, u):
+    """The lower tier's zones (t2 + bonus, x k about each basic location) where its fit puts them;
+    the legend's (artist, text)."""
+    t2, datums, form = pr.spec.lower
+    lo = pr.composite.lower
+    for (bx, by), (zx, zy), r in zip(pr.pattern.locations, lower_zone_centres(pr), lo.readings):
+        c = Circle((bx + k * (zx - bx), by + k * (zy - by)), k * r.allowed / 2, fill=False, ec=S.PROJECTED, lw=1.1,
+                   ls=(0, (4, 2)), zorder=4, gid="lower-tier zone")
+        ax.add_patch(c)
+    name = "feature-relating" if form == "composite" else "lower segment (two single segments)"
+    return (Circle((0, 0), 1, fill=False, ec=S.PROJECTED, ls=(0, (4, 2))),
+            f"{name} ⌀{u.fmt(t2)} | {' | '.join(datums)}: zones where its fit puts them, x{k:g}")
 
 
 def pattern_figure(res: SceneResult, pid: str, figsize=FIGSIZE, fs: float = 8.0, pr=None) -> Figure:

@@ -101,6 +101,25 @@ def interface_rows(res: SceneResult, pid: str) -> list[list[str]]:
     return rows if len(rows) > 1 else []
 
 
+def _interface_picture(p, res: SceneResult, pid: str, x0: float, y: float, W: float, room: float) -> float:
+    """Both parts of the pattern's first interface in 3D (rendered off-screen, iso, cut open at
+    the tightest pair), where the page has room for it (at least 1.4 in); the y under it."""
+    from viewer.scene3d import render_image
+    from viewer.scene3d.interface import build_interface_scene, interfaces_of
+
+    idx = interfaces_of(res, pid)
+    if not idx or room < 1.4:
+        return y
+    h = min(room, 3.4)
+    w = min(W, h * 1.5)
+    img = render_image(build_interface_scene(res, idx[0]), view="iso", size=(int(w * 200), int(h * 200)))
+    ax = p.fig.add_axes(p.rect(x0 + (W - w) / 2, y, w, h))
+    ax.imshow(img, interpolation="antialiased")
+    ax.set_axis_off()
+    ax.set_gid("interface-3d")
+    return y + h
+
+
 def build_pattern_page(res: SceneResult, pid: str, page_no: int, pages: int, file_name: str | None = None):
     """The page of pattern ``pid``: its picture (right and wrong way where measured), the member
     table, the datum and the verdict in words, and the interface pairs."""
@@ -115,7 +134,9 @@ def build_pattern_page(res: SceneResult, pid: str, page_no: int, pages: int, fil
         y += 0.1
         ways = ("right", "wrong") if pr.wrong is not None else ("right",)
         k = exaggeration_for(pr)
-        h = 3.2
+        from viewer.scene3d.interface import interfaces_of
+
+        h = 2.5 if interfaces_of(res, pid) else 3.2  # room for the interface's 3D picture below
         w = (W - 0.3 * (len(ways) - 1)) / len(ways)
         handles = None
         for i, way in enumerate(ways):
@@ -141,6 +162,8 @@ def build_pattern_page(res: SceneResult, pid: str, page_no: int, pages: int, fil
         if irows:
             y += 0.05
             y = _table(p, x0, y, [1.9, 0.6, 1.2, W - 3.7], irows, 6.3, aligns=["left"] * 4)
+            y = _interface_picture(p, res, pid, x0, y + 0.1, W,
+                                   PAGE[1] - (1.4 if pr.right is not None else 0.95) - y - 0.1)
         if pr.right is not None:  # a measured pattern: the page is evidence to sign
             _disposition(p, x0, max(y + 0.25, PAGE[1] - 1.25), W)
     return p.fig

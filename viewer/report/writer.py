@@ -30,6 +30,7 @@ from .inspection import build_inspection_page, inspection_image_slot
 from .page import PAGE_3D_ASPECT, crop_to_content
 from .pattern import build_pattern_page
 from .readings import scene_inspections
+from .yieldpage import build_yield_page
 
 VECTOR_FORMATS = ("svg", "pdf")
 RENDER_SIZE = (1600, 1200)  # pixels of every 3D picture
@@ -146,6 +147,16 @@ def inspection_images(scene3d_obj, view: str) -> list[tuple[str, np.ndarray]]:
 # ------------------------------------------------------------------------------------ writing
 
 
+def _yield_runs(res: SceneResult) -> list:
+    """One statistical fit (:func:`geom.yieldmc.run_yield`, the scene's samples and seed) per
+    mate and pattern interface, when the scene has statistical inputs; else none."""
+    if res.scene.statistics is None:
+        return []
+    from geom.yieldmc import run_yield, targets
+
+    return [run_yield(res.scene, kind, i) for kind, i, _label in targets(res.scene)]
+
+
 def _sweepable(res: SceneResult, item) -> bool:
     """Whether a page subject has a size to sweep: the mate's hole, or the lone feature."""
     fid = res.scene.mates[item.index].hole if item.index is not None else item.feature_id
@@ -177,7 +188,10 @@ def write_report(res: SceneResult, out_dir, sizes: dict[str, float] | None = Non
     fastener_pages = [fids[i:i + FASTENERS_PER_PAGE] for i in range(0, len(fids), FASTENERS_PER_PAGE)]
     sweeps = [(item, fmt) for item in items for fmt in animate if _sweepable(res, item)]
     pids = [pr.pattern.id for pr in res.frames.patterns] if res.frames is not None else []
-    steps = len(items) * (1 + len(VIEW_FILES)) + len(inspections) + len(fids) + 2 + len(sweeps) + len(pids)
+    # the statistical fit, where the scene gives its inputs ([yield] / [[process]] tables)
+    yields = _yield_runs(res)
+    steps = (len(items) * (1 + len(VIEW_FILES)) + len(inspections) + len(fids) + 2 + len(sweeps) + len(pids)
+             + len(yields))
     n = 0
     written: list[Path] = []
 
@@ -249,9 +263,18 @@ def write_report(res: SceneResult, out_dir, sizes: dict[str, float] | None = Non
         written += paths
         pattern_files[pid] = paths[0].name
         say(f"pattern {pid}: top view", paths)
+    for yr in yields:
+        from viewer.figures.yieldplot import yield_figure
+
+        fig = yield_figure(yr, res.scene.units)
+        paths = [out / f"yield_{yr.kind}_{yr.index + 1}.{ext}" for ext in ("png", "svg")]
+        for q in paths:
+            F.save_figure(fig, q)
+        written += paths
+        say(f"statistical fit of {yr.kind} {yr.index + 1}: histogram", paths)
     pdf = out / "report.pdf"
     rep = dict(res.scene.report)
-    pages = len(inspections) + len(items) + len(pids) + len(fastener_pages)
+    pages = len(inspections) + len(items) + len(pids) + len(fastener_pages) + len(yields)
     with F.style_context():
         with PdfPages(pdf, metadata={"Title": f"Fit evidence: {res.scene.title}",
                                      "Subject": rep.get("report_number", ""),
@@ -272,6 +295,9 @@ def write_report(res: SceneResult, out_dir, sizes: dict[str, float] | None = Non
             for group in fastener_pages:
                 page += 1
                 pp.savefig(build_fastener_page(res, group, page, pages, fastener_files))
+            for yr in yields:
+                page += 1
+                pp.savefig(build_yield_page(res, yr, page, pages))
     written.append(pdf)
     say(f"report ({pages} page{'s' if pages != 1 else ''})", [pdf])
     js = out / "results.json"
@@ -279,6 +305,10 @@ def write_report(res: SceneResult, out_dir, sizes: dict[str, float] | None = Non
     from geom.inspect import inspection_to_json
 
     data["inspections"] = {fid: inspection_to_json(insp) for fid, insp in inspections.items()}
+    if res.scene.statistics is not None:
+        from geom.yieldout import yield_to_json
+
+        data["yield"] = [yield_to_json(yr) for yr in yields]
     data["caution"] = CAUTION
     js.write_text(json.dumps(data, indent=2, ensure_ascii=False) + "\n", encoding="utf-8")
     written.append(js)

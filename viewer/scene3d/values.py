@@ -31,6 +31,8 @@ LAYERS = (
     "mate",  # the mating pin (or hole) at its own worst case, coloured by clearance
     "clearance",  # the tightest spot(s) and the gap there
     "projected",  # projected tolerance zone region: axis extension, mating part, fastener
+    "mating_part",  # an interface's part 2: its plate, pins (or threaded holes) and pilot boss
+    "simulator",  # an interface's datum simulators at their MMB (the pilot of the gauge)
     "points",  # measured points, coloured by radial deviation (inspection scenes)
     "median_line",  # derived median line: section centres, as a polyline with its points
     "envelopes",  # unrelated and related actual mating envelopes of the measured feature

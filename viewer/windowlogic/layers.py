@@ -15,6 +15,8 @@ from dataclasses import dataclass
 LAYER_NAMES = {
     "part": "Part",
     "datum": "Datum A",
+    "mating_part": "Part 2 (pins, pilot boss)",
+    "simulator": "Datum simulators",
     "zone": "Tolerance zone",
     "zone_axis": "Zone axis",
     "axis": "Worst-case axis",
