@@ -91,7 +91,7 @@ def needed_samples(p: float, precision: float | None, confidence: float) -> Need
     (3 / h at 95 %, the rule of three).
 
     >>> needed_samples(0.01, 0.001, 0.95).n_normal, needed_samples(0.0, 0.001, 0.95).n_zero
-    (38032, 2996)
+    (38031, 2996)
     """
     if precision is None:
         return Needed(None, None, None)

@@ -163,10 +163,13 @@ def test_every_demo_scene_produces_its_report(scene, demo_report):
     fit_pages = len(sc.mates) + len([f for f in sc.features if f.id not in mated])
     measured = [f for f in sc.features if f.measured is not None]
     fastener_pages = -(-len(sc.fasteners) // FASTENERS_PER_PAGE)
-    assert len(pages) == len(measured) + fit_pages + len(sc.patterns) + fastener_pages  # a page per pattern
+    from geom.yieldmc import targets
+
+    yield_pages = len(targets(sc)) if sc.statistics is not None else 0  # a statistical-fit page per mate / interface
+    assert len(pages) == len(measured) + fit_pages + len(sc.patterns) + fastener_pages + yield_pages
     assert len(list(out.glob("*_3d_iso.png"))) == fit_pages + len(measured)
     assert len(list(out.glob("inspection_*_3d_section.png"))) == len(measured)
-    assert len(list(out.glob("*.svg"))) == 3 * fit_pages + len(sc.fasteners) + len(sc.patterns)
+    assert len(list(out.glob("*.svg"))) == 3 * fit_pages + len(sc.fasteners) + len(sc.patterns) + yield_pages
     data = json.loads((out / "results.json").read_text(encoding="utf-8"))
     assert sorted(data["inspections"]) == sorted(f.id for f in measured)
     raw = "\n".join(pages)
